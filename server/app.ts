@@ -1,0 +1,116 @@
+import { existsSync } from 'node:fs'
+import { fileURLToPath } from 'node:url'
+import express, { type Express } from 'express'
+import helmet from 'helmet'
+import cookieParser from 'cookie-parser'
+import { pinoHttp } from 'pino-http'
+import pino from 'pino'
+import { systemClock } from './clock'
+import type { AppContext, AppDeps } from './context'
+import { createOutbox } from './mail/outbox'
+import { authenticate } from './middleware/authenticate'
+import { errorHandler } from './middleware/errorHandler'
+import { notFound } from './errors'
+import { buildRouter, type RouteDef } from './routes/table'
+import { authRoutes } from './routes/auth'
+import { staffRoutes } from './routes/staff'
+import { panelRoutes } from './routes/panel'
+import { auditRoutes } from './routes/audit'
+import { mailRoutes } from './routes/mail'
+
+export interface MountedTable {
+  prefix: string
+  routes: RouteDef[]
+}
+
+/** Every route table with its mount point: the app mounts these and the role test walks them. */
+export function routeTables(ctx: AppContext): MountedTable[] {
+  return [
+    {
+      prefix: '/api',
+      routes: [
+        {
+          method: 'get',
+          path: '/health',
+          roles: 'public',
+          handler: (_req, res) => {
+            res.json({ status: 'ok' })
+          },
+        },
+      ],
+    },
+    { prefix: '/api/auth', routes: authRoutes(ctx) },
+    { prefix: '/api/staff', routes: staffRoutes(ctx) },
+    { prefix: '/api/panel', routes: panelRoutes(ctx) },
+    { prefix: '/api/audit', routes: auditRoutes(ctx) },
+    { prefix: '/api/mail', routes: mailRoutes(ctx) },
+  ]
+}
+
+const distDir = fileURLToPath(new URL('../dist', import.meta.url))
+
+export interface RingdownApp extends Express {
+  locals: Express['locals'] & { ctx: AppContext; tables: MountedTable[] }
+}
+
+export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownApp {
+  const clock = deps.clock ?? systemClock
+  const logger = deps.logger ?? pino({ level: deps.config.env === 'test' ? 'silent' : 'info' })
+  const ctx: AppContext = {
+    knex: deps.knex,
+    config: deps.config,
+    clock,
+    logger,
+    mailbox: deps.mailbox,
+    outbox: createOutbox({ knex: deps.knex, mailer: deps.mailer, clock, config: deps.config, logger }),
+  }
+
+  const app = express() as unknown as RingdownApp
+  app.disable('x-powered-by')
+  app.set('trust proxy', 'loopback')
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'img-src': ["'self'", 'data:', 'blob:'],
+          'media-src': ["'self'", 'blob:'],
+          'font-src': ["'self'", 'data:'],
+          'style-src': ["'self'", "'unsafe-inline'"],
+          // Plain http on localhost in development must not be upgraded.
+          'upgrade-insecure-requests': deps.config.env === 'production' ? [] : null,
+        },
+      },
+    }),
+  )
+  app.use(
+    pinoHttp({
+      logger,
+      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
+      // One short line per request; headers (cookies among them) stay out of the log.
+      serializers: {
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url }),
+        res: (res: { statusCode: number }) => ({ status: res.statusCode }),
+      },
+    }),
+  )
+  app.use('/api', express.json({ limit: deps.config.jsonLimit }), cookieParser())
+  app.use('/api', authenticate(ctx))
+
+  const tables = routeTables(ctx)
+  for (const t of tables) app.use(t.prefix, buildRouter(t.routes))
+  app.use('/api', (req, _res, next) => next(notFound(`API route ${req.method} ${req.originalUrl.split('?')[0]}`)))
+
+  if (deps.serveClient && existsSync(distDir)) {
+    app.use(express.static(distDir, { index: false, maxAge: '1h' }))
+    // The client routes everything else; index.html is never cached so new builds show at once.
+    app.get('/{*path}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache')
+      res.sendFile('index.html', { root: distDir })
+    })
+  }
+
+  app.use(errorHandler(logger))
+  app.locals.ctx = ctx
+  app.locals.tables = tables
+  return app
+}

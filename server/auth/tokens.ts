@@ -1,0 +1,80 @@
+import jwt from 'jsonwebtoken'
+import type { Clock } from '../clock'
+
+export const SESSION_COOKIE = 'rd_session'
+
+export interface SessionClaims {
+  sub: number
+  /** Token version: must equal the user's current one, so deactivation revokes old cookies. */
+  tv: number
+  iat: number
+  exp: number
+}
+
+const seconds = (clock: Clock) => Math.floor(clock.now().getTime() / 1000)
+
+export function signSession(
+  secret: string,
+  clock: Clock,
+  userId: number,
+  tokenVersion: number,
+  minutes: number,
+): string {
+  return jwt.sign({ sub: userId, tv: tokenVersion, iat: seconds(clock) }, secret, {
+    algorithm: 'HS256',
+    expiresIn: minutes * 60,
+    audience: 'session',
+  })
+}
+
+export function verifySession(secret: string, clock: Clock, token: string): SessionClaims | null {
+  try {
+    const claims = jwt.verify(token, secret, {
+      algorithms: ['HS256'],
+      audience: 'session',
+      clockTimestamp: seconds(clock),
+    })
+    if (typeof claims !== 'object' || typeof claims.sub !== 'number') return null
+    return claims as unknown as SessionClaims
+  } catch {
+    return null
+  }
+}
+
+export interface LinkClaims {
+  jti: string
+  sub: number
+  purpose: string
+}
+
+/** Links in e-mails (set a password, reset it): signed, expiring, single use via link_tokens. */
+export function signLink(
+  secret: string,
+  clock: Clock,
+  claims: LinkClaims,
+  expiresInSeconds: number,
+): string {
+  return jwt.sign({ ...claims, iat: seconds(clock) }, secret, {
+    algorithm: 'HS256',
+    expiresIn: expiresInSeconds,
+    audience: 'link',
+  })
+}
+
+export function verifyLink(
+  secret: string,
+  clock: Clock,
+  token: string,
+): (LinkClaims & { exp: number }) | 'expired' | null {
+  try {
+    const claims = jwt.verify(token, secret, {
+      algorithms: ['HS256'],
+      audience: 'link',
+      clockTimestamp: seconds(clock),
+    })
+    if (typeof claims !== 'object' || typeof claims.jti !== 'string') return null
+    return claims as unknown as LinkClaims & { exp: number }
+  } catch (err) {
+    return (err as Error).name === 'TokenExpiredError' ? 'expired' : null
+  }
+}

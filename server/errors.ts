@@ -1,0 +1,44 @@
+import type { ErrorCode } from '../shared/types/api'
+
+const STATUS: Record<ErrorCode, number> = {
+  bad_request: 400,
+  validation_failed: 422,
+  unauthenticated: 401,
+  forbidden: 403,
+  not_found: 404,
+  conflict: 409,
+  rate_limited: 429,
+  payload_too_large: 413,
+  invalid_token: 400,
+  internal: 500,
+}
+
+/** The one error type services throw; the error handler turns it into JSON. */
+export class AppError extends Error {
+  readonly status: number
+  constructor(
+    readonly code: ErrorCode,
+    message: string,
+    readonly extra: {
+      fields?: Record<string, string[]>
+      rows?: { row: number; errors: string[] }[]
+    } = {},
+  ) {
+    super(message)
+    this.status = STATUS[code]
+  }
+}
+
+export const badRequest = (message: string) => new AppError('bad_request', message)
+export const notFound = (what = 'That') => new AppError('not_found', `${what} was not found`)
+export const conflict = (message: string, fields?: Record<string, string[]>) =>
+  new AppError('conflict', message, { fields })
+export const forbidden = (message = 'You do not have access to this') =>
+  new AppError('forbidden', message)
+export const unauthenticated = (message = 'Please sign in') =>
+  new AppError('unauthenticated', message)
+export const invalidToken = (message: string) => new AppError('invalid_token', message)
+export const validationFailed = (
+  message: string,
+  extra: { fields?: Record<string, string[]>; rows?: { row: number; errors: string[] }[] },
+) => new AppError('validation_failed', message, extra)

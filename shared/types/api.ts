@@ -1,0 +1,34 @@
+import type { Role } from '../constants'
+
+/** Stable error codes: clients branch on these, never on message text. */
+export const ERROR_CODES = [
+  'bad_request',
+  'validation_failed',
+  'unauthenticated',
+  'forbidden',
+  'not_found',
+  'conflict',
+  'rate_limited',
+  'payload_too_large',
+  'invalid_token',
+  'internal',
+] as const
+export type ErrorCode = (typeof ERROR_CODES)[number]
+
+export interface ApiErrorBody {
+  error: {
+    code: ErrorCode
+    message: string
+    /** Field path → messages, for forms. */
+    fields?: Record<string, string[]>
+    /** Per-row problems of an import. */
+    rows?: { row: number; errors: string[] }[]
+  }
+}
+
+export interface Me {
+  id: number
+  email: string
+  name: string
+  role: Role
+}
