@@ -18,12 +18,23 @@ export default tseslint.config(
     languageOptions: { globals: { ...globals.browser } },
   },
   {
-    files: ['server/**/*.ts', 'migrations/**/*.ts', 'seeds/**/*.ts', 'tests/**/*.ts', 'scripts/**/*.ts', '*.ts', '*.js'],
+    files: [
+      'server/**/*.ts',
+      'migrations/**/*.ts',
+      'seeds/**/*.ts',
+      'tests/**/*.ts',
+      'scripts/**/*.ts',
+      '*.ts',
+      '*.js',
+    ],
     languageOptions: { globals: { ...globals.node } },
   },
   {
     rules: {
-      '@typescript-eslint/no-unused-vars': ['error', { argsIgnorePattern: '^_', varsIgnorePattern: '^_' }],
+      '@typescript-eslint/no-unused-vars': [
+        'error',
+        { argsIgnorePattern: '^_', varsIgnorePattern: '^_' },
+      ],
       'vue/multi-word-component-names': 'off',
     },
   },

@@ -62,7 +62,13 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
     clock,
     logger,
     mailbox: deps.mailbox,
-    outbox: createOutbox({ knex: deps.knex, mailer: deps.mailer, clock, config: deps.config, logger }),
+    outbox: createOutbox({
+      knex: deps.knex,
+      mailer: deps.mailer,
+      clock,
+      config: deps.config,
+      logger,
+    }),
   }
 
   const app = express() as unknown as RingdownApp
@@ -98,7 +104,9 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
 
   const tables = routeTables(ctx)
   for (const t of tables) app.use(t.prefix, buildRouter(t.routes))
-  app.use('/api', (req, _res, next) => next(notFound(`API route ${req.method} ${req.originalUrl.split('?')[0]}`)))
+  app.use('/api', (req, _res, next) =>
+    next(notFound(`API route ${req.method} ${req.originalUrl.split('?')[0]}`)),
+  )
 
   if (deps.serveClient && existsSync(distDir)) {
     app.use(express.static(distDir, { index: false, maxAge: '1h' }))

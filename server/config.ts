@@ -24,7 +24,10 @@ const DEFAULT_DB = 'data/ringdown.sqlite'
 
 /** The development JWT secret is generated once and kept beside the database, never committed. */
 function localSecret(databaseFile: string): string {
-  const file = resolve(dirname(databaseFile === ':memory:' ? DEFAULT_DB : databaseFile), '.jwt-secret')
+  const file = resolve(
+    dirname(databaseFile === ':memory:' ? DEFAULT_DB : databaseFile),
+    '.jwt-secret',
+  )
   if (existsSync(file)) return readFileSync(file, 'utf8').trim()
   mkdirSync(dirname(file), { recursive: true })
   const secret = randomBytes(48).toString('base64url')

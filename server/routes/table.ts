@@ -1,4 +1,10 @@
-import { Router, type NextFunction, type Request, type RequestHandler, type Response } from 'express'
+import {
+  Router,
+  type NextFunction,
+  type Request,
+  type RequestHandler,
+  type Response,
+} from 'express'
 import type { Role } from '../../shared/constants'
 import { forbidden, unauthenticated } from '../errors'
 

@@ -54,7 +54,10 @@ export async function listAudit(
   if (query.q) {
     const like = `%${query.q}%`
     q.where((w) =>
-      w.where('details', 'like', like).orWhere('target_id', like).orWhere('action', 'like', like),
+      w
+        .where('details', 'like', like)
+        .orWhere('target_id', 'like', like)
+        .orWhere('action', 'like', like),
     )
   }
   if (query.from) q.where('at', '>=', `${query.from}T00:00:00.000Z`)

@@ -63,10 +63,7 @@ const SORT_COLUMNS = {
   code: 'code',
 } as const
 
-export async function listPlayers(
-  knex: Knex,
-  query: ListPlayersQuery,
-): Promise<Player[]> {
+export async function listPlayers(knex: Knex, query: ListPlayersQuery): Promise<Player[]> {
   const q = knex<PlayerRow>('players')
   if (query.status !== 'all') q.where({ status: query.status })
   if (query.level) q.where({ level: query.level })
@@ -101,7 +98,8 @@ export async function panelSummary(knex: Knex): Promise<PanelSummary> {
   for (const r of rows) {
     byStatus[r.status] = (byStatus[r.status] ?? 0) + 1
     if (r.status !== 'active') continue
-    for (const i of JSON.parse(r.instruments) as string[]) byInstrument[i] = (byInstrument[i] ?? 0) + 1
+    for (const i of JSON.parse(r.instruments) as string[])
+      byInstrument[i] = (byInstrument[i] ?? 0) + 1
     byLevel[r.level] = (byLevel[r.level] ?? 0) + 1
   }
   return { total: byStatus.active, byInstrument, byLevel, byStatus }

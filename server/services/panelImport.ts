@@ -75,8 +75,7 @@ export async function importPanelCsv(
     for (const f of found) taken.add(f.email)
   }
   for (const v of valid) {
-    if (taken.has(v.data.email))
-      rows.push({ row: v.line, errors: ['email: already on the panel'] })
+    if (taken.has(v.data.email)) rows.push({ row: v.line, errors: ['email: already on the panel'] })
   }
   if (rows.length) {
     rows.sort((a, b) => a.row - b.row)

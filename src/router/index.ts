@@ -1,0 +1,106 @@
+import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
+import type { Role } from '@shared/constants'
+import { useSessionStore } from '@/stores/session'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Who may open the page; absent = anyone, even signed out. */
+    roles?: readonly Role[]
+    /** Label in the navigation; absent = not listed. */
+    nav?: string
+    navGroup?: 'work' | 'admin'
+    title?: string
+  }
+}
+
+const STAFF = ['admin', 'developer', 'analyst'] as const
+
+export const routes: RouteRecordRaw[] = [
+  {
+    path: '/sign-in',
+    name: 'sign-in',
+    component: () => import('@/views/SignInView.vue'),
+    meta: { title: 'Sign in' },
+  },
+  {
+    path: '/forgot-password',
+    name: 'forgot-password',
+    component: () => import('@/views/ForgotPasswordView.vue'),
+    meta: { title: 'Forgot password' },
+  },
+  {
+    path: '/set-password',
+    name: 'set-password',
+    component: () => import('@/views/SetPasswordView.vue'),
+    meta: { title: 'Choose a password' },
+  },
+  {
+    path: '/',
+    component: () => import('@/components/AppShell.vue'),
+    children: [
+      {
+        path: '',
+        name: 'home',
+        component: () => import('@/views/HomeView.vue'),
+        meta: { roles: STAFF, nav: 'Overview', navGroup: 'work', title: 'Overview' },
+      },
+      {
+        path: 'panel',
+        name: 'panel',
+        component: () => import('@/views/PanelView.vue'),
+        meta: { roles: ['admin', 'developer'], nav: 'Panel', navGroup: 'work', title: 'Panel' },
+      },
+      {
+        path: 'admin/staff',
+        name: 'staff',
+        component: () => import('@/views/StaffView.vue'),
+        meta: { roles: ['admin'], nav: 'Staff accounts', navGroup: 'admin', title: 'Staff' },
+      },
+      {
+        path: 'admin/audit',
+        name: 'audit',
+        component: () => import('@/views/AuditView.vue'),
+        meta: { roles: ['admin'], nav: 'Audit log', navGroup: 'admin', title: 'Audit log' },
+      },
+      {
+        path: 'admin/mail',
+        name: 'mail',
+        component: () => import('@/views/MailView.vue'),
+        meta: { roles: ['admin'], nav: 'Mail', navGroup: 'admin', title: 'Mail' },
+      },
+      {
+        path: 'no-access',
+        name: 'no-access',
+        component: () => import('@/views/NoAccessView.vue'),
+        meta: { roles: STAFF, title: 'No access' },
+      },
+      {
+        path: ':pathMatch(.*)*',
+        name: 'not-found',
+        component: () => import('@/views/NotFoundView.vue'),
+        meta: { roles: STAFF, title: 'Not found' },
+      },
+    ],
+  },
+]
+
+export function createRingdownRouter() {
+  const router = createRouter({ history: createWebHistory(), routes })
+
+  // For the user's sake only: the server checks every request on its own.
+  router.beforeEach(async (to) => {
+    const session = useSessionStore()
+    await session.load()
+    if (to.meta.roles && !session.user) {
+      return { name: 'sign-in', query: to.fullPath === '/' ? {} : { next: to.fullPath } }
+    }
+    if (to.meta.roles && !session.can(to.meta.roles)) {
+      return { name: 'no-access', query: { from: to.fullPath } }
+    }
+    if (to.name === 'sign-in' && session.user) return { name: 'home' }
+  })
+  router.afterEach((to) => {
+    document.title = to.meta.title ? `${to.meta.title} · Ringdown` : 'Ringdown'
+  })
+  return router
+}

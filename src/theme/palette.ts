@@ -1,0 +1,31 @@
+// Ringdown's own colours: rosin amber on warm paper, ebony text; an evening theme on ebony.
+export const palette = {
+  light: {
+    paper: '#fbf7ef',
+    card: '#ffffff',
+    ink: '#231b14',
+    muted: '#6b5a48',
+    line: '#e6dac4',
+    amber: '#b86f1e',
+    amberHover: '#a05f15',
+    amberPressed: '#8a5011',
+    spruce: '#3f6b4f',
+    varnish: '#a6402b',
+    caution: '#b7791f',
+    slate: '#4f6b84',
+  },
+  dark: {
+    paper: '#1b1611',
+    card: '#251e17',
+    ink: '#f1e7d6',
+    muted: '#bba98f',
+    line: '#3d3226',
+    amber: '#e0a04f',
+    amberHover: '#eab26a',
+    amberPressed: '#c98b3c',
+    spruce: '#7fb592',
+    varnish: '#e07a62',
+    caution: '#e3b25a',
+    slate: '#93b2cc',
+  },
+} as const
