@@ -59,5 +59,10 @@ export function authenticate(ctx: AppContext) {
 }
 
 export function actorOf(req: Request): Actor {
-  return { userId: req.user?.id ?? null, email: req.user?.email ?? null, ip: req.ip ?? null }
+  return {
+    userId: req.user?.id ?? null,
+    email: req.user?.email ?? null,
+    name: req.user?.name ?? null,
+    ip: req.ip ?? null,
+  }
 }

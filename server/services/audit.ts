@@ -4,6 +4,8 @@ import type { AuditEntry, ListAuditQuery } from '../../shared/schemas/audit'
 export interface Actor {
   userId: number | null
   email: string | null
+  /** For mail wording ("Ada has invited you"); not stored in the audit log. */
+  name?: string | null
   ip?: string | null
 }
 

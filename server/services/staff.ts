@@ -56,7 +56,7 @@ export async function inviteStaff(
       updated_at: now,
     })
     const row: UserRow = await trx('users').where({ id }).first()
-    await sendInvite(ctx, row, actor.email ?? 'An admin', trx)
+    await sendInvite(ctx, row, actor.name ?? actor.email ?? 'An admin', trx)
     await recordAudit(trx, ctx.clock.now(), actor, {
       action: 'staff.invited',
       targetType: 'user',
@@ -75,7 +75,7 @@ export async function resendStaffInvite(ctx: AppContext, id: number, actor: Acto
   if (user.status !== 'invited')
     throw conflict('This account has already chosen a password; use a password reset instead')
   await ctx.knex.transaction(async (trx) => {
-    await sendInvite(ctx, user, actor.email ?? 'An admin', trx)
+    await sendInvite(ctx, user, actor.name ?? actor.email ?? 'An admin', trx)
     await recordAudit(trx, ctx.clock.now(), actor, {
       action: 'staff.invite_resent',
       targetType: 'user',
