@@ -9,7 +9,8 @@ export function zodFields(error: z.ZodError): Record<string, string[]> {
       for (const key of issue.keys) (fields[key] ??= []).push('Unknown field')
       continue
     }
-    const path = issue.path.join('.') || '_'
+    // "instruments", not "instruments.0": people fix fields, not array slots.
+    const path = issue.path.filter((p) => typeof p !== 'number').join('.') || '_'
     ;(fields[path] ??= []).push(issue.message)
   }
   return fields
