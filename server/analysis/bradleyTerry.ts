@@ -158,7 +158,9 @@ function standardErrors(wins: number[][], prob: number[][], reference: number): 
     free.map((j) => {
       if (i !== j) return -(wins[i][j] + wins[j][i]) * prob[i][j] * prob[j][i]
       let sum = 0
-      for (let l = 0; l < k; l++) if (l !== i) sum += (wins[i][l] + wins[l][i]) * prob[i][l] * prob[l][i]
+      for (let l = 0; l < k; l++) {
+        if (l !== i) sum += (wins[i][l] + wins[l][i]) * prob[i][l] * prob[l][i]
+      }
       return sum
     }),
   )

@@ -77,6 +77,15 @@ function exactSpearmanP(s: number, n: number): number {
   return Math.min(1, (2 * tail) / total)
 }
 
+/** Spearman's rho alone (Pearson r of average ranks), for callers that need no p-value. */
+export function spearmanRho(x: ArrayLike<number>, y: ArrayLike<number>): number | null {
+  const n = Math.min(x.length, y.length)
+  if (n < 2) return null
+  const rx = rankAverage(Array.from({ length: n }, (_, i) => x[i]))
+  const ry = rankAverage(Array.from({ length: n }, (_, i) => y[i]))
+  return pearson(rx.ranks, ry.ranks)
+}
+
 /**
  * Spearman's rho with a two-sided p: exact for n ≤ 9 without ties, otherwise the t
  * approximation t = r·√((n − 2)/(1 − r²)) on n − 2 df (common practice; R uses an Edgeworth

@@ -36,8 +36,12 @@ export function pairedTTest(
 }
 
 /** One-sample t on differences; split out so callers holding differences skip a copy. */
-export function oneSampleT(d: ArrayLike<number>, options: PairedTOptions = {}): PairedTResult {
+export function oneSampleT(
+  differences: ArrayLike<number>,
+  options: PairedTOptions = {},
+): PairedTResult {
   const { alternative = 'two-sided', level = 0.95 } = options
+  const d = finiteOnly(differences)
   const n = d.length
   const empty = {
     n,
@@ -76,4 +80,12 @@ export function oneSampleT(d: ArrayLike<number>, options: PairedTOptions = {}): 
     ci = { lower: mean - half, upper: mean + half }
   }
   return { n, meanDifference: mean, sdDifference: sd, ci, t, df, p, dz: mean / sd, reason: null }
+}
+
+/** A missing value leaves the pair out rather than turning every figure into NaN. */
+function finiteOnly(values: ArrayLike<number>): ArrayLike<number> {
+  for (let i = 0; i < values.length; i++) {
+    if (!Number.isFinite(values[i])) return Array.from(values).filter(Number.isFinite)
+  }
+  return values
 }

@@ -12,7 +12,21 @@ export function rankAverage(values: ArrayLike<number>): Ranking {
   const n = values.length
   const order = new Uint32Array(n)
   for (let i = 0; i < n; i++) order[i] = i
-  order.sort((a, b) => values[a] - values[b])
+  if (n <= 16) {
+    // Insertion sort: a Friedman block is one player's handful of recipes, ranked thousands
+    // of times per findings call, where a comparator-driven sort costs more than it saves.
+    for (let i = 1; i < n; i++) {
+      const item = order[i]
+      let j = i - 1
+      while (j >= 0 && values[order[j]] > values[item]) {
+        order[j + 1] = order[j]
+        j--
+      }
+      order[j + 1] = item
+    }
+  } else {
+    order.sort((a, b) => values[a] - values[b])
+  }
   const ranks = new Float64Array(n)
   const ties: number[] = []
   let tieTerm = 0

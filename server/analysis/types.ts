@@ -8,11 +8,7 @@ export type Id = string | number
 
 /** Why a result could not be computed; null when it could. */
 export type Reason =
-  | 'not enough data'
-  | 'no variance'
-  | 'no finite estimate'
-  | 'fewer than three recipes'
-  | null
+  'not enough data' | 'no variance' | 'no finite estimate' | 'fewer than three recipes' | null
 
 export type Alternative = 'two-sided' | 'less' | 'greater'
 

@@ -1,9 +1,12 @@
 import normalCdf from '@stdlib/stats-base-dists-normal-cdf'
-import { rankAverage } from './rank.ts'
 import type { Alternative, Reason } from './types.ts'
 
 /** R switches to the normal approximation at 50 non-zero differences; so do we. */
 export const WILCOXON_EXACT_LIMIT = 50
+
+// Even when exact is asked for, the table costs n³/2 steps to build; beyond this the normal
+// approximation is indistinguishable and a request cannot stall the server.
+const EXACT_HARD_LIMIT = 200
 
 export interface WilcoxonResult {
   /** Non-zero differences used (zeros are dropped, as R does). */
@@ -56,7 +59,9 @@ function cumulativeCounts(n: number): Float64Array {
 
 /** P(V ≤ v) under H0 for n untied, non-zero differences (R's psignrank). */
 export function signedRankCdf(v: number, n: number): number {
-  if (n < 0 || n >= 1000) throw new RangeError('signedRankCdf: n must be between 0 and 999')
+  if (!Number.isInteger(n) || n < 0 || n > EXACT_HARD_LIMIT) {
+    throw new RangeError(`signedRankCdf: n must be an integer from 0 to ${EXACT_HARD_LIMIT}`)
+  }
   const max = (n * (n + 1)) / 2
   const s = Math.floor(v + 1e-7)
   if (s < 0) return 0
@@ -87,27 +92,33 @@ export function wilcoxonSignedRank(
 ): WilcoxonResult {
   const { alternative = 'two-sided', correct = true } = options
   const length = y ? Math.min(x.length, y.length) : x.length
-  const nonZero: number[] = []
+  // Positive and negative magnitudes are sorted apart with the native numeric sort and then
+  // merged, which ranks |d| without a comparator callback: this runs for every recipe pair.
+  const positive = new Float64Array(length)
+  const negative = new Float64Array(length)
+  let np = 0
+  let nn = 0
   let zeros = 0
   for (let i = 0; i < length; i++) {
     const d = y ? x[i] - y[i] : x[i]
-    if (d === 0) zeros++
-    else nonZero.push(d)
+    if (d > 0) positive[np++] = d
+    else if (d < 0) negative[nn++] = -d
+    else if (d === 0) zeros++
+    // Anything else is a missing value: it is not a pair at all.
   }
-  const n = nonZero.length
+  const n = np + nn
   const empty = { n, zeros, V: null, p: null, method: null, rankBiserial: null }
   if (n === 0) return { ...empty, reason: zeros > 0 ? 'no variance' : 'not enough data' }
-
-  const abs = nonZero.map(Math.abs)
-  const { ranks, tieTerm } = rankAverage(abs)
-  let V = 0
-  for (let i = 0; i < n; i++) if (nonZero[i] > 0) V += ranks[i]
+  const { V, tieTerm } = positiveRankSum(
+    positive.subarray(0, np).sort(),
+    negative.subarray(0, nn).sort(),
+  )
   const total = (n * (n + 1)) / 2
   const rankBiserial = (2 * V) / total - 1
 
   const useExact = (options.exact ?? n < WILCOXON_EXACT_LIMIT) && tieTerm === 0 && zeros === 0
   let p: number
-  if (useExact && n < 1000) {
+  if (useExact && n <= EXACT_HARD_LIMIT) {
     const upper = () => 1 - signedRankCdf(V - 1, n)
     const lower = () => signedRankCdf(V, n)
     if (alternative === 'greater') p = upper()
@@ -128,4 +139,34 @@ export function wilcoxonSignedRank(
   else if (alternative === 'less') p = normalCdf(z, 0, 1)
   else p = Math.min(1, 2 * normalCdf(-Math.abs(z), 0, 1))
   return { n, zeros, V, p, method: 'normal', rankBiserial, reason: null }
+}
+
+/** Sum of the average ranks of the positive magnitudes among all magnitudes, both sorted. */
+function positiveRankSum(
+  positive: Float64Array,
+  negative: Float64Array,
+): { V: number; tieTerm: number } {
+  let i = 0
+  let j = 0
+  let below = 0
+  let V = 0
+  let tieTerm = 0
+  while (i < positive.length || j < negative.length) {
+    const value = Math.min(positive[i] ?? Infinity, negative[j] ?? Infinity)
+    let inPositive = 0
+    let inNegative = 0
+    while (i < positive.length && positive[i] === value) {
+      i++
+      inPositive++
+    }
+    while (j < negative.length && negative[j] === value) {
+      j++
+      inNegative++
+    }
+    const t = inPositive + inNegative
+    V += inPositive * (below + (t + 1) / 2)
+    if (t > 1) tieTerm += t * t * t - t
+    below += t
+  }
+  return { V, tieTerm }
 }

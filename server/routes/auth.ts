@@ -15,21 +15,26 @@ import { forgotBody, loginBody, resetBody, tokenQuery } from '../../shared/schem
 import { AppError } from '../errors'
 
 export function authRoutes(ctx: AppContext): RouteDef[] {
-  // Limits come from the config so the load benchmarks can lift them.
-  const limiter = rateLimit({
-    windowMs: ctx.config.loginRateLimit.windowMs,
-    limit: ctx.config.loginRateLimit.max,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    handler: (_req, _res, next) =>
-      next(new AppError('rate_limited', 'Too many attempts. Wait a few minutes and try again.')),
-  })
+  // Limits come from the config so the load benchmarks can lift them. Only failed sign-ins
+  // count, so a whole office behind one address is not locked out by its own daily sign-ins.
+  const limit = (skipSuccessfulRequests: boolean) =>
+    rateLimit({
+      windowMs: ctx.config.loginRateLimit.windowMs,
+      limit: ctx.config.loginRateLimit.max,
+      skipSuccessfulRequests,
+      standardHeaders: 'draft-8',
+      legacyHeaders: false,
+      handler: (_req, _res, next) =>
+        next(new AppError('rate_limited', 'Too many attempts. Wait a few minutes and try again.')),
+    })
+  const signInLimiter = limit(true)
+  const linkLimiter = limit(false)
   return [
     {
       method: 'post',
       path: '/login',
       roles: 'public',
-      before: [limiter],
+      before: [signInLimiter],
       handler: async (req, res) => {
         const body = parse(loginBody, req.body)
         const user = await signIn(ctx, body.email, body.password, req.ip ?? null)
@@ -68,7 +73,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/forgot',
       roles: 'public',
-      before: [limiter],
+      before: [linkLimiter],
       handler: async (req, res) => {
         const body = parse(forgotBody, req.body)
         await requestPasswordReset(ctx, body.email, actorOf(req))
@@ -90,7 +95,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/set-password',
       roles: 'public',
-      before: [limiter],
+      before: [linkLimiter],
       handler: async (req, res) => {
         const body = parse(resetBody, req.body)
         const user = await setPasswordWithLink(ctx, body.token, body.password, req.ip ?? null)

@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
 import type { AuditEntry, ListAuditQuery } from '../../shared/schemas/audit'
+import { whereContains } from '../db/like'
 
 export interface Actor {
   userId: number | null
@@ -52,15 +53,13 @@ export async function listAudit(
 ): Promise<{ total: number; entries: AuditEntry[] }> {
   const q = knex<AuditRow>('audit_log')
   if (query.action) q.where('action', 'like', `${query.action}%`)
-  if (query.actor) q.where('actor_email', 'like', `%${query.actor}%`)
+  if (query.actor) whereContains(q, 'actor_email', query.actor)
   if (query.q) {
-    const like = `%${query.q}%`
-    q.where((w) =>
-      w
-        .where('details', 'like', like)
-        .orWhere('target_id', 'like', like)
-        .orWhere('action', 'like', like),
-    )
+    const text = query.q
+    q.where((w) => {
+      for (const [i, column] of ['details', 'target_id', 'action'].entries())
+        whereContains(w, column, text, i > 0)
+    })
   }
   if (query.from) q.where('at', '>=', `${query.from}T00:00:00.000Z`)
   if (query.to) q.where('at', '<=', `${query.to}T23:59:59.999Z`)

@@ -3,6 +3,7 @@ import type { Knex } from 'knex'
 import type { AppContext } from '../context'
 import { conflict, notFound } from '../errors'
 import { recordAudit, type Actor } from './audit'
+import { whereContains } from '../db/like'
 import type {
   CreatePlayerBody,
   ListPlayersQuery,
@@ -70,14 +71,11 @@ export async function listPlayers(knex: Knex, query: ListPlayersQuery): Promise<
   // Instruments are a JSON array of known words, so a quoted match is exact.
   if (query.instrument) q.where('instruments', 'like', `%"${query.instrument}"%`)
   if (query.q) {
-    const like = `%${query.q}%`
-    q.where((w) =>
-      w
-        .where('name', 'like', like)
-        .orWhere('email', 'like', like)
-        .orWhere('region', 'like', like)
-        .orWhere('code', 'like', like),
-    )
+    const text = query.q
+    q.where((w) => {
+      for (const [i, column] of ['name', 'email', 'region', 'code'].entries())
+        whereContains(w, column, text, i > 0)
+    })
   }
   const rows: PlayerRow[] = await q
     .orderByRaw(`${SORT_COLUMNS[query.sort]} IS NULL`)

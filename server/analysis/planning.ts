@@ -1,0 +1,127 @@
+import normalQuantile from '@stdlib/stats-base-dists-normal-quantile'
+import tCdf from '@stdlib/stats-base-dists-t-cdf'
+import tQuantile from '@stdlib/stats-base-dists-t-quantile'
+import { binomialLower, binomialUpper } from './binomial.ts'
+import { TRIANGLE_GUESS_RATE, triangleMinimumCorrect } from './triangle.ts'
+import type { Reason } from './types.ts'
+
+export interface SampleSizePlan {
+  /** Players (or answers, for the triangle test) needed; null when it cannot be planned. */
+  n: number | null
+  /** Power actually reached at n by the method's own power function. */
+  power: number | null
+  reason: Reason
+}
+
+// Planning beyond this is not a panel any more; refuse rather than loop for ever.
+const MAX_N = 100_000
+
+const z = (p: number) => normalQuantile(p, 0, 1)
+
+export interface PairedTPlanInput {
+  /** Smallest difference worth finding, in rating points. */
+  difference: number
+  /** Expected SD of a player's difference between the two recipes. */
+  sd: number
+  alpha?: number
+  power?: number
+}
+
+/**
+ * Players for a two-sided paired t-test: the smallest n with
+ * n ≥ ((t_{1−α/2, n−1} + t_{power, n−1}) · s / d)², the textbook iteration.
+ */
+export function pairedTSampleSize(input: PairedTPlanInput): SampleSizePlan {
+  const { difference, sd, alpha = 0.05, power = 0.8 } = input
+  const effect = Math.abs(difference) / sd
+  if (!(effect > 0) || !Number.isFinite(effect) || !validLevels(alpha, power)) {
+    return { n: null, power: null, reason: sd === 0 ? 'no variance' : 'not enough data' }
+  }
+  const required = (n: number) =>
+    ((tQuantile(1 - alpha / 2, n - 1) + tQuantile(power, n - 1)) / effect) ** 2
+  // The normal-theory answer is a lower bound, so the search starts there and runs briefly.
+  let n = Math.max(2, Math.ceil(((z(1 - alpha / 2) + z(power)) / effect) ** 2))
+  while (n < MAX_N && required(n) > n) n++
+  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  return { n, power: pairedTPower(n, effect, alpha), reason: null }
+}
+
+/** Approximate power of the two-sided paired t: the shifted central t (misses the far tail). */
+export function pairedTPower(n: number, standardizedEffect: number, alpha = 0.05): number {
+  const df = n - 1
+  return tCdf(standardizedEffect * Math.sqrt(n) - tQuantile(1 - alpha / 2, df), df)
+}
+
+export interface SignTestPlanInput {
+  /** Expected share of players preferring the favoured recipe (not 0.5). */
+  share: number
+  alpha?: number
+  power?: number
+}
+
+/** Exact power of the two-sided sign test at n against a true preference share. */
+export function signTestPower(n: number, share: number, alpha = 0.05): number {
+  // Largest c with 2·P(X ≤ c) ≤ α under p = 0.5; the test rejects at X ≤ c or X ≥ n − c.
+  // Binary search: the tail grows with c, and a linear scan is quadratic inside the n search.
+  let lo = -1
+  let hi = Math.floor((n - 1) / 2)
+  while (lo < hi) {
+    const mid = Math.ceil((lo + hi) / 2)
+    if (2 * binomialLower(mid, n, 0.5) <= alpha) lo = mid
+    else hi = mid - 1
+  }
+  const c = lo
+  if (c < 0) return 0
+  return binomialLower(c, n, share) + binomialUpper(n - c, n, share)
+}
+
+/**
+ * Players for the sign test: the smallest n whose exact power reaches the target. Exact power
+ * saw-tooths with n, so a slightly larger n can fall short again; the plan reports the power.
+ */
+export function signTestSampleSize(input: SignTestPlanInput): SampleSizePlan {
+  const { share, alpha = 0.05, power = 0.8 } = input
+  if (!(share > 0 && share < 1) || share === 0.5 || !validLevels(alpha, power)) {
+    return { n: null, power: null, reason: share === 0.5 ? 'no variance' : 'not enough data' }
+  }
+  const approx =
+    ((z(1 - alpha / 2) * 0.5 + z(power) * Math.sqrt(share * (1 - share))) / (share - 0.5)) ** 2
+  let n = Math.max(1, Math.floor(approx * 0.7))
+  while (n < MAX_N && signTestPower(n, share, alpha) < power) n++
+  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  return { n, power: signTestPower(n, share, alpha), reason: null }
+}
+
+export interface TrianglePlanInput {
+  /** Proportion of discriminators worth detecting (0–1). */
+  pd: number
+  alpha?: number
+  power?: number
+}
+
+export function trianglePower(n: number, pd: number, alpha = 0.05): number {
+  const x = triangleMinimumCorrect(n, alpha)
+  if (x === null) return 0
+  return binomialUpper(x, n, TRIANGLE_GUESS_RATE + (2 / 3) * pd)
+}
+
+/** Answers needed for a triangle test to detect a given pd (one-sided, exact). */
+export function triangleSampleSize(input: TrianglePlanInput): SampleSizePlan {
+  const { pd, alpha = 0.05, power = 0.8 } = input
+  if (!(pd > 0 && pd <= 1) || !validLevels(alpha, power)) {
+    return { n: null, power: null, reason: 'not enough data' }
+  }
+  const p1 = TRIANGLE_GUESS_RATE + (2 / 3) * pd
+  const p0 = TRIANGLE_GUESS_RATE
+  const approx =
+    ((z(1 - alpha) * Math.sqrt(p0 * (1 - p0)) + z(power) * Math.sqrt(p1 * (1 - p1))) / (p1 - p0)) **
+    2
+  let n = Math.max(1, Math.floor(approx * 0.7))
+  while (n < MAX_N && trianglePower(n, pd, alpha) < power) n++
+  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  return { n, power: trianglePower(n, pd, alpha), reason: null }
+}
+
+function validLevels(alpha: number, power: number): boolean {
+  return alpha > 0 && alpha < 1 && power > 0 && power < 1
+}

@@ -1,0 +1,175 @@
+import { pearson, spearmanRho } from './correlation.ts'
+import type { Id, Rating, Reason } from './types.ts'
+
+export interface ReliabilityOptions {
+  /** Points two ratings of the same hidden duplicate may differ before they count as a miss. */
+  tolerance?: number
+  /** Share of missed duplicates above which a player is flagged. */
+  maxMissShare?: number
+  /** Fewer duplicate pairs than this cannot judge a player fairly; no flag is raised. */
+  minPairs?: number
+}
+
+/**
+ * Default tolerance: a fifth of the 0–100 scale. A player whose repeat ratings scatter with an
+ * SD of about 10 points misses it on roughly 15% of duplicates, so the flag lands on players
+ * noisier than that.
+ */
+export const DUPLICATE_TOLERANCE = 20
+export const MAX_MISS_SHARE = 0.15
+export const MIN_DUPLICATE_PAIRS = 3
+
+export function reliabilityRule(
+  tolerance = DUPLICATE_TOLERANCE,
+  maxMissShare = MAX_MISS_SHARE,
+  minPairs = MIN_DUPLICATE_PAIRS,
+): string {
+  return (
+    `A player is flagged for exclusion when their two ratings of the same hidden duplicate ` +
+    `differ by more than ${tolerance} points on more than ${Math.round(maxMissShare * 100)}% ` +
+    `of duplicated items (judged only with at least ${minPairs} duplicated items). Adapted ` +
+    `from the assessor post-screening of ITU-R BS.1534-3 §4.1.2, which applies the same 15% ` +
+    `limit to a hidden reference. A flag is advice to the analyst: exclusion is their decision ` +
+    `and is recorded with a reason.`
+  )
+}
+
+/** The rule as applied with the defaults, for reports and the findings page. */
+export const RELIABILITY_RULE = reliabilityRule()
+
+export interface PlayerReliability {
+  player: Id
+  /** Pairs of ratings of the same recipe, clip and attribute by this player. */
+  duplicatePairs: number
+  /** Pairs differing by more than the tolerance. */
+  misses: number
+  missShare: number | null
+  meanAbsoluteDifference: number | null
+  /** Pearson r between first and second ratings across duplicated items. */
+  duplicateCorrelation: number | null
+  /**
+   * Spearman rho between the player's recipe means and the rest of the panel's, across
+   * recipe × attribute cells (each centred within its attribute).
+   */
+  panelAgreement: number | null
+  panelCells: number
+  flagged: boolean
+  reason: Reason
+}
+
+export interface ReliabilityResult {
+  rule: string
+  players: PlayerReliability[]
+}
+
+const key = (...parts: (Id | undefined)[]) => parts.map((p) => String(p ?? '')).join('\u0000')
+
+export function reliability(
+  ratings: readonly Rating[],
+  options: ReliabilityOptions = {},
+): ReliabilityResult {
+  const {
+    tolerance = DUPLICATE_TOLERANCE,
+    maxMissShare = MAX_MISS_SHARE,
+    minPairs = MIN_DUPLICATE_PAIRS,
+  } = options
+  // Repeats of one item, in the order given (the order answered).
+  const repeats = new Map<string, { player: Id; values: number[] }>()
+  // Cell means per player (recipe × attribute) and panel totals for the leave-one-out.
+  const cells = new Map<Id, Map<string, { attribute: Id; sum: number; count: number }>>()
+  const panel = new Map<string, { sum: number; count: number }>()
+  for (const r of ratings) {
+    if (typeof r.value !== 'number' || !Number.isFinite(r.value)) continue
+    const itemKey = key(r.player, r.recipe, r.clip, r.attribute)
+    const item = repeats.get(itemKey) ?? { player: r.player, values: [] }
+    item.values.push(r.value)
+    repeats.set(itemKey, item)
+    const cellKey = key(r.recipe, r.attribute)
+    let playerCells = cells.get(r.player)
+    if (!playerCells) cells.set(r.player, (playerCells = new Map()))
+    const cell = playerCells.get(cellKey) ?? { attribute: r.attribute, sum: 0, count: 0 }
+    cell.sum += r.value
+    cell.count++
+    playerCells.set(cellKey, cell)
+  }
+  for (const playerCells of cells.values()) {
+    for (const [cellKey, cell] of playerCells) {
+      const total = panel.get(cellKey) ?? { sum: 0, count: 0 }
+      total.sum += cell.sum / cell.count
+      total.count++
+      panel.set(cellKey, total)
+    }
+  }
+
+  const pairsByPlayer = new Map<Id, [number, number][]>()
+  for (const { player, values } of repeats.values()) {
+    if (values.length < 2) continue
+    const list = pairsByPlayer.get(player) ?? []
+    // Every pair of repeats: with the usual two repeats that is one pair per item.
+    for (let i = 0; i < values.length; i++) {
+      for (let j = i + 1; j < values.length; j++) list.push([values[i], values[j]])
+    }
+    pairsByPlayer.set(player, list)
+  }
+
+  const players: PlayerReliability[] = []
+  for (const [player, playerCells] of cells) {
+    const pairs = pairsByPlayer.get(player) ?? []
+    const misses = pairs.filter(([a, b]) => Math.abs(a - b) > tolerance).length
+    const enough = pairs.length >= minPairs
+    const missShare = pairs.length > 0 ? misses / pairs.length : null
+    const mad =
+      pairs.length > 0 ? pairs.reduce((s, [a, b]) => s + Math.abs(a - b), 0) / pairs.length : null
+    const agreement = leaveOneOut(playerCells, panel)
+    players.push({
+      player,
+      duplicatePairs: pairs.length,
+      misses,
+      missShare,
+      meanAbsoluteDifference: mad,
+      duplicateCorrelation:
+        pairs.length >= 3
+          ? pearson(
+              pairs.map((p) => p[0]),
+              pairs.map((p) => p[1]),
+            )
+          : null,
+      panelAgreement: agreement.rho,
+      panelCells: agreement.cells,
+      flagged: enough && (missShare as number) > maxMissShare,
+      reason: enough ? null : 'not enough data',
+    })
+  }
+  return { rule: reliabilityRule(tolerance, maxMissShare, minPairs), players }
+}
+
+function leaveOneOut(
+  playerCells: Map<string, { attribute: Id; sum: number; count: number }>,
+  panel: Map<string, { sum: number; count: number }>,
+): { rho: number | null; cells: number } {
+  // Group by attribute so each side can be centred: attributes sit at different heights on
+  // the scale, and that offset alone would make any player look in tune with the panel.
+  const byAttribute = new Map<Id, { own: number[]; rest: number[] }>()
+  for (const [cellKey, cell] of playerCells) {
+    const total = panel.get(cellKey)
+    if (!total || total.count < 2) continue
+    const own = cell.sum / cell.count
+    const rest = (total.sum - own) / (total.count - 1)
+    const group = byAttribute.get(cell.attribute) ?? { own: [], rest: [] }
+    group.own.push(own)
+    group.rest.push(rest)
+    byAttribute.set(cell.attribute, group)
+  }
+  const own: number[] = []
+  const rest: number[] = []
+  for (const group of byAttribute.values()) {
+    if (group.own.length < 2) continue
+    const mo = group.own.reduce((a, b) => a + b, 0) / group.own.length
+    const mr = group.rest.reduce((a, b) => a + b, 0) / group.rest.length
+    group.own.forEach((v, i) => {
+      own.push(v - mo)
+      rest.push(group.rest[i] - mr)
+    })
+  }
+  return { rho: own.length >= 3 ? spearmanRho(own, rest) : null, cells: own.length }
+}

@@ -1,0 +1,17 @@
+// `npm run bench`: one line per figure, `name: value unit (target …)`; `-- --json` for JSON.
+import type { Figure } from './figure'
+import { findingsFigures } from './findings'
+
+const suites: [string, () => Figure[] | Promise<Figure[]>][] = [['findings', findingsFigures]]
+
+const json = process.argv.includes('--json')
+const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length)
+const figures: Figure[] = []
+for (const [name, run] of suites) {
+  if (only && only !== name) continue
+  for (const f of await run()) {
+    figures.push(f)
+    if (!json) console.log(`${f.name}: ${f.value} ${f.unit} (target ${f.target})`)
+  }
+}
+if (json) console.log(JSON.stringify({ figures }))

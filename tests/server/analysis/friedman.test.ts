@@ -1,0 +1,75 @@
+import { describe, expect, it } from 'vitest'
+import { friedman } from '../../../server/analysis/index.ts'
+
+// RoundingTimes: Hollander & Wolfe (1973) p. 140, base-running times for 22 players with three
+// methods (round out, narrow angle, wide angle); full matrix as printed in R's friedman.test.Rd.
+const roundingTimes = [
+  [5.4, 5.5, 5.55],
+  [5.85, 5.7, 5.75],
+  [5.2, 5.6, 5.5],
+  [5.55, 5.5, 5.4],
+  [5.9, 5.85, 5.7],
+  [5.45, 5.55, 5.6],
+  [5.4, 5.4, 5.35],
+  [5.45, 5.5, 5.35],
+  [5.25, 5.15, 5.0],
+  [5.85, 5.8, 5.7],
+  [5.25, 5.2, 5.1],
+  [5.65, 5.55, 5.45],
+  [5.6, 5.35, 5.45],
+  [5.05, 5.0, 4.95],
+  [5.5, 5.5, 5.4],
+  [5.45, 5.55, 5.5],
+  [5.55, 5.55, 5.35],
+  [5.45, 5.5, 5.55],
+  [5.5, 5.45, 5.25],
+  [5.65, 5.6, 5.4],
+  [5.7, 5.65, 5.55],
+  [6.3, 6.3, 6.25],
+]
+
+describe('friedman', () => {
+  it('reproduces R friedman.test(RoundingTimes), with its ties', () => {
+    const r = friedman(roundingTimes)
+    // Source: R friedman.test.Rd: Friedman chi-squared = 11.143, df = 2, p-value = 0.003805.
+    expect(r.chiSquare).toBeCloseTo(11.143, 3)
+    expect(r.df).toBe(2)
+    expect(r.p).toBeCloseTo(0.003805, 6)
+    // Computed from the ranks (see /work/shared/REFERENCES.md): rank sums 53, 47, 32.
+    expect(r.rankSums).toEqual([53, 47, 32])
+    // Kendall's W = chi² / (n (k − 1)) = 11.143 / 44 (REFERENCES.md: 0.2532).
+    expect(r.kendallW).toBeCloseTo(0.2532, 4)
+  })
+
+  it('gives W = 1 when every player ranks the recipes the same way', () => {
+    // Computed: perfect concordance without ties gives chi² = n (k − 1), so W = 1.
+    const r = friedman([
+      [1, 2, 3, 4],
+      [10, 20, 30, 40],
+      [5, 6, 7, 8],
+    ])
+    expect(r.chiSquare).toBeCloseTo(9, 12)
+    expect(r.kendallW).toBeCloseTo(1, 12)
+  })
+
+  it('returns reasons instead of NaN on bad input', () => {
+    expect(friedman([])).toMatchObject({
+      chiSquare: null,
+      p: null,
+      reason: 'fewer than three recipes',
+    })
+    expect(friedman([[1, 2, 3]])).toMatchObject({ p: null, reason: 'not enough data' })
+    expect(
+      friedman([
+        [1, 2],
+        [2, 1],
+      ]),
+    ).toMatchObject({ reason: 'fewer than three recipes' })
+    expect(
+      friedman([
+        [50, 50, 50],
+        [70, 70, 70],
+      ]),
+    ).toMatchObject({ chiSquare: null, p: null, kendallW: null, reason: 'no variance' })
+  })
+})

@@ -1,0 +1,71 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import request from 'supertest'
+import { buildApp, signInAs, type TestApp } from './helpers'
+
+describe('the API shell', () => {
+  let t: TestApp
+  beforeAll(async () => {
+    t = await buildApp()
+  })
+  afterAll(() => t.close())
+
+  it('answers the health check without sign-in', async () => {
+    const res = await request(t.app).get('/api/health')
+
+    expect(res.status).toBe(200)
+    expect(res.body).toEqual({ status: 'ok' })
+  })
+
+  it('answers an unknown /api route with a JSON 404', async () => {
+    const res = await request(t.app).get('/api/no-such-thing?x=1')
+
+    expect(res.status).toBe(404)
+    expect(res.headers['content-type']).toMatch(/json/)
+    expect(res.body.error.code).toBe('not_found')
+    expect(res.body.error.message).not.toContain('x=1')
+  })
+
+  it('refuses malformed JSON with 400 bad_request', async () => {
+    const res = await request(t.app)
+      .post('/api/auth/login')
+      .set('Content-Type', 'application/json')
+      .send('{"email": "admin@ringdown.test",')
+
+    expect(res.status).toBe(400)
+    expect(res.body.error.code).toBe('bad_request')
+  })
+
+  it('refuses a JSON body over the size limit with 413', async () => {
+    const res = await request(t.app)
+      .post('/api/auth/login')
+      .send({ email: 'admin@ringdown.test', password: 'x'.repeat(200_000) })
+
+    expect(res.status).toBe(413)
+    expect(res.body.error.code).toBe('payload_too_large')
+  })
+
+  it('does not reveal the server software', async () => {
+    const res = await request(t.app).get('/api/health')
+
+    expect(res.headers['x-powered-by']).toBeUndefined()
+    expect(res.headers['content-security-policy']).toBeDefined()
+  })
+})
+
+describe('an unexpected failure', () => {
+  it('becomes a bare 500 with code internal and nothing from inside', async () => {
+    const t = await buildApp()
+    const admin = await signInAs(t.app, 'admin')
+    // A table gone missing stands for any fault the code did not foresee.
+    await t.knex.schema.dropTable('audit_log')
+
+    const res = await admin.get('/api/audit')
+
+    expect(res.status).toBe(500)
+    expect(res.body).toEqual({
+      error: { code: 'internal', message: 'Something went wrong on our side' },
+    })
+    expect(res.text).not.toMatch(/audit_log|sqlite|select|stack/i)
+    await t.close()
+  })
+})

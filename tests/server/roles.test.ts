@@ -1,0 +1,108 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import request from 'supertest'
+import { ROLES, STAFF_ROLES, type StaffRole } from '../../shared/constants'
+import type { MountedTable } from '../../server/app'
+import type { RouteDef } from '../../server/routes/table'
+import { buildApp, memoryMailbox, signInAs, type Agent, type TestApp } from './helpers'
+
+// The app is built at collection time so the table of cases is known before tests are declared.
+const t: TestApp = await buildApp({ mailbox: memoryMailbox() })
+const tables: MountedTable[] = t.app.locals.tables
+
+interface Case {
+  method: RouteDef['method']
+  path: string
+  roles: RouteDef['roles']
+}
+
+const cases: Case[] = tables.flatMap((table) =>
+  table.routes.map((r) => ({
+    method: r.method,
+    path: (table.prefix + (r.path === '/' ? '' : r.path)).replace(/\/$/, ''),
+    roles: r.roles,
+  })),
+)
+const guarded = cases.filter((c) => c.roles !== 'public')
+
+const agents = {} as Record<StaffRole, Agent>
+let ids: { player: number; user: number }
+
+beforeAll(async () => {
+  for (const role of STAFF_ROLES) agents[role] = await signInAs(t.app, role)
+  // A player made for this test alone, since an allowed DELETE will erase it.
+  const player = await agents.admin.post('/api/panel/players').send({
+    name: 'Matrix Player',
+    email: 'matrix.player@example.test',
+    instruments: ['viola'],
+    level: 'amateur',
+  })
+  const analyst = await agents.admin.get('/api/staff')
+  ids = {
+    player: player.body.player.id,
+    user: analyst.body.users.find((u: { role: string }) => u.role === 'analyst').id,
+  }
+})
+afterAll(() => t.close())
+
+function url(c: Case): string {
+  return c.path.replace(':id', String(c.path.includes('/players/') ? ids.player : ids.user))
+}
+
+function call(agent: Agent | ReturnType<typeof request>, c: Case) {
+  const req = agent[c.method](url(c))
+  return c.method === 'get' || c.method === 'delete' ? req : req.send({})
+}
+
+describe('route tables', () => {
+  it('list a role rule for every route, naming only known roles', () => {
+    expect(cases.length).toBeGreaterThan(10)
+    for (const c of cases) {
+      const ok =
+        c.roles === 'public' ||
+        (Array.isArray(c.roles) &&
+          c.roles.length > 0 &&
+          c.roles.every((r) => (ROLES as readonly string[]).includes(r)))
+      expect(ok, `${c.method.toUpperCase()} ${c.path}`).toBe(true)
+    }
+  })
+
+  it('keep staff and panel administration away from the public', () => {
+    const open = cases.filter((c) => c.roles === 'public').map((c) => `${c.method} ${c.path}`)
+    expect(open.sort()).toEqual(
+      [
+        'get /api/health',
+        'post /api/auth/login',
+        'post /api/auth/logout',
+        'get /api/auth/me',
+        'post /api/auth/forgot',
+        'get /api/auth/link',
+        'post /api/auth/set-password',
+      ].sort(),
+    )
+  })
+})
+
+describe.each(guarded)('$method $path', (c) => {
+  it('refuses an anonymous caller with 401', async () => {
+    const res = await call(request(t.app), c)
+    expect(res.status).toBe(401)
+    expect(res.body.error.code).toBe('unauthenticated')
+  })
+
+  const roles = c.roles as readonly string[]
+  for (const role of STAFF_ROLES) {
+    if (roles.includes(role)) {
+      it(`lets ${role} through`, async () => {
+        const res = await call(agents[role], c)
+        expect([401, 403]).not.toContain(res.status)
+        expect(res.status).toBeLessThan(500)
+      })
+    } else {
+      it(`refuses ${role} with 403`, async () => {
+        const res = await call(agents[role], c)
+        expect(res.status).toBe(403)
+        expect(res.body.error.code).toBe('forbidden')
+      })
+    }
+  }
+})
