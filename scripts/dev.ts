@@ -4,7 +4,12 @@ import { spawn, type ChildProcess } from 'node:child_process'
 const children: ChildProcess[] = [
   spawn('node_modules/.bin/tsx', ['watch', '--clear-screen=false', 'server/index.ts'], {
     stdio: 'inherit',
-    env: { ...process.env, RINGDOWN_API_ONLY: '1' },
+    // Links in e-mails must open the Vite server, which serves the client in development.
+    env: {
+      ...process.env,
+      RINGDOWN_API_ONLY: '1',
+      PUBLIC_URL: process.env.PUBLIC_URL ?? `http://localhost:${process.env.VITE_PORT ?? 5173}`,
+    },
   }),
   spawn('node_modules/.bin/vite', [], { stdio: 'inherit', env: process.env }),
 ]

@@ -45,7 +45,8 @@ export async function decodeFlac(
   if (info.totalSamples / info.sampleRate > maxSeconds) {
     throw new AudioError(
       'too_long',
-      `The recording lasts ${(info.totalSamples / info.sampleRate).toFixed(0)} s; the limit is ${maxSeconds} s.`,
+      'The recording lasts ' +
+        `${Math.round(info.totalSamples / info.sampleRate)} s; the limit is ${maxSeconds} s.`,
     )
   }
   const decoder = new FLACDecoder()
@@ -69,11 +70,21 @@ export async function decodeFlac(
     if (frames / info.sampleRate > maxSeconds) {
       throw new AudioError('too_long', `The recording is longer than ${maxSeconds} s.`)
     }
+    const bitDepth = decoded.bitDepth || info.bitDepth
+    // The decoder divides by 2^(bits−1) − 1; WAV and every meter use 2^(bits−1), so rescale to
+    // give the same numbers for the same integer samples whichever container they came in.
+    const full = 2 ** (bitDepth - 1)
+    const rescale = (full - 1) / full
+    const channels = decoded.channelData.map((channel) => {
+      const out = channel.subarray(0, frames)
+      for (let i = 0; i < frames; i++) out[i] *= rescale
+      return out
+    })
     return {
       container: 'flac',
       sampleRate: decoded.sampleRate || info.sampleRate,
-      channels: decoded.channelData.map((channel) => channel.subarray(0, frames)),
-      bitDepth: decoded.bitDepth || info.bitDepth,
+      channels,
+      bitDepth,
       format: 'pcm',
     }
   } finally {

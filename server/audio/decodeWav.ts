@@ -133,7 +133,8 @@ export function decodeWav(bytes: Uint8Array, options: DecodeOptions = {}): Decod
       if (declaredFrames / fmt.sampleRate > maxSeconds) {
         throw new AudioError(
           'too_long',
-          `The recording lasts ${(declaredFrames / fmt.sampleRate).toFixed(0)} s; the limit is ${maxSeconds} s.`,
+          'The recording lasts ' +
+            `${Math.round(declaredFrames / fmt.sampleRate)} s; the limit is ${maxSeconds} s.`,
         )
       }
       const present = Math.min(size, bytes.length - body)

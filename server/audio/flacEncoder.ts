@@ -21,8 +21,16 @@ export function encodeFlac(
 
   for (let start = 0, n = 0; start < frames; start += blockSize, n++) {
     const size = Math.min(blockSize, frames - start)
-    const header = [0xff, 0xf8, 0x70, ((channels.length - 1) << 4) | sampleSizeCode() << 1]
-    header.push(...utf8Number(n), (size - 1) >> 8, (size - 1) & 0xff)
+    // Rate and size are repeated in every frame header: the decoder is handed frames one by
+    // one and never sees STREAMINFO.
+    const rate = sampleRateCode(sampleRate)
+    const header = [
+      0xff,
+      0xf8,
+      0x70 | rate.code,
+      ((channels.length - 1) << 4) | (sampleSizeCode() << 1),
+    ]
+    header.push(...utf8Number(n), (size - 1) >> 8, (size - 1) & 0xff, ...rate.tail)
     header.push(crc8(header))
     const bytesPerSample = bitDepth / 8
     const frame = new Uint8Array(header.length + channels.length * (1 + size * bytesPerSample) + 2)
@@ -37,7 +45,7 @@ export function encodeFlac(
     }
     const crc = crc16(frame.subarray(0, p))
     frame[p++] = crc >> 8
-    frame[p++] = crc & 0xff
+    frame[p] = crc & 0xff
     parts.push(frame)
   }
   return concatBytes(parts)
@@ -70,16 +78,35 @@ export function encodeFlac(
   }
 }
 
+const SAMPLE_RATE_CODES: Record<number, number> = {
+  88200: 0b0001,
+  176400: 0b0010,
+  192000: 0b0011,
+  8000: 0b0100,
+  16000: 0b0101,
+  22050: 0b0110,
+  24000: 0b0111,
+  32000: 0b1000,
+  44100: 0b1001,
+  48000: 0b1010,
+  96000: 0b1011,
+}
+
+function sampleRateCode(rate: number): { code: number; tail: number[] } {
+  if (SAMPLE_RATE_CODES[rate] !== undefined) return { code: SAMPLE_RATE_CODES[rate], tail: [] }
+  if (rate % 1000 === 0 && rate / 1000 < 256) return { code: 0b1100, tail: [rate / 1000] }
+  if (rate < 65536) return { code: 0b1101, tail: [rate >> 8, rate & 0xff] }
+  if (rate % 10 === 0 && rate / 10 < 65536) {
+    return { code: 0b1110, tail: [(rate / 10) >> 8, (rate / 10) & 0xff] }
+  }
+  throw new RangeError(`FLAC frames cannot state a sample rate of ${rate} Hz.`)
+}
+
 function utf8Number(n: number): number[] {
   if (n < 0x80) return [n]
   if (n < 0x800) return [0xc0 | (n >> 6), 0x80 | (n & 0x3f)]
   if (n < 0x10000) return [0xe0 | (n >> 12), 0x80 | ((n >> 6) & 0x3f), 0x80 | (n & 0x3f)]
-  return [
-    0xf0 | (n >> 18),
-    0x80 | ((n >> 12) & 0x3f),
-    0x80 | ((n >> 6) & 0x3f),
-    0x80 | (n & 0x3f),
-  ]
+  return [0xf0 | (n >> 18), 0x80 | ((n >> 12) & 0x3f), 0x80 | ((n >> 6) & 0x3f), 0x80 | (n & 0x3f)]
 }
 
 function crc8(bytes: readonly number[]): number {
@@ -95,7 +122,8 @@ function crc16(bytes: Uint8Array): number {
   let crc = 0
   for (const byte of bytes) {
     crc ^= byte << 8
-    for (let i = 0; i < 8; i++) crc = crc & 0x8000 ? ((crc << 1) ^ 0x8005) & 0xffff : (crc << 1) & 0xffff
+    for (let i = 0; i < 8; i++)
+      crc = crc & 0x8000 ? ((crc << 1) ^ 0x8005) & 0xffff : (crc << 1) & 0xffff
   }
   return crc
 }

@@ -39,7 +39,11 @@ export function deriveKWeighting(sampleRate: number): KWeighting {
   const vb = vh ** SHELF_BANDWIDTH_EXPONENT
   let a0 = 1 + k / SHELF_Q + k * k
   const shelf: Biquad = {
-    b: [(vh + (vb * k) / SHELF_Q + k * k) / a0, (2 * (k * k - vh)) / a0, (vh - (vb * k) / SHELF_Q + k * k) / a0],
+    b: [
+      (vh + (vb * k) / SHELF_Q + k * k) / a0,
+      (2 * (k * k - vh)) / a0,
+      (vh - (vb * k) / SHELF_Q + k * k) / a0,
+    ],
     a: [(2 * (k * k - 1)) / a0, (1 - k / SHELF_Q + k * k) / a0],
   }
   k = Math.tan((Math.PI * HIGH_PASS_HZ) / sampleRate)

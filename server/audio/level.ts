@@ -23,6 +23,11 @@ export function mixToMono(channels: readonly Float32Array[]): Float32Array {
   if (channels.length === 1) return channels[0]
   const length = channels[0]?.length ?? 0
   const mono = new Float32Array(length)
+  if (channels.length === 2) {
+    const [left, right] = channels
+    for (let i = 0; i < length; i++) mono[i] = 0.5 * (left[i] + right[i])
+    return mono
+  }
   for (const channel of channels) {
     for (let i = 0; i < length; i++) mono[i] += channel[i]
   }

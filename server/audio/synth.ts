@@ -100,7 +100,10 @@ export function exponentialDecay(
   const out = new Float32Array(length)
   for (let i = 0; i < length; i++) out[i] = amplitude * carrier[i] * Math.exp(-i / sampleRate / tau)
   if (options.noiseFloorDbfs !== undefined) {
-    addInPlace(out, whiteNoise({ seconds, sampleRate, rmsDbfs: options.noiseFloorDbfs, seed: seed + 1 }))
+    addInPlace(
+      out,
+      whiteNoise({ seconds, sampleRate, rmsDbfs: options.noiseFloorDbfs, seed: seed + 1 }),
+    )
   }
   return out
 }
@@ -119,9 +122,24 @@ export function bowedTone(
     delaySeconds?: number
   },
 ): Float32Array {
-  const { seconds, sampleRate = 48_000, f0, attackSeconds, peakDbfs = -6, delaySeconds = 0 } =
-    options
-  const amplitudes = options.harmonicAmplitudes ?? [1, 1 / 2, 1 / 3, 1 / 4, 1 / 5, 1 / 6, 1 / 7, 1 / 8]
+  const {
+    seconds,
+    sampleRate = 48_000,
+    f0,
+    attackSeconds,
+    peakDbfs = -6,
+    delaySeconds = 0,
+  } = options
+  const amplitudes = options.harmonicAmplitudes ?? [
+    1,
+    1 / 2,
+    1 / 3,
+    1 / 4,
+    1 / 5,
+    1 / 6,
+    1 / 7,
+    1 / 8,
+  ]
   const tone = harmonicSum(f0, amplitudes, seconds, sampleRate, peakDbfs)
   const start = Math.round(delaySeconds * sampleRate)
   const ramp = Math.max(1, attackSeconds * sampleRate)

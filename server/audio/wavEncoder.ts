@@ -65,7 +65,10 @@ export function encodeWav(
     f.setUint16(18, bitDepth, true)
     f.setUint32(20, 0, true)
     // KSDATAFORMAT_SUBTYPE_PCM / _IEEE_FLOAT: the tag followed by the fixed GUID tail.
-    fmt.set([tag, 0, 0, 0, 0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xaa, 0x00, 0x38, 0x9b, 0x71], 24)
+    fmt.set(
+      [tag, 0, 0, 0, 0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xaa, 0x00, 0x38, 0x9b, 0x71],
+      24,
+    )
   }
 
   const chunks: Uint8Array[] = [encoder.encode('WAVE'), chunk('fmt ', fmt)]

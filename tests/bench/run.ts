@@ -1,8 +1,12 @@
 // `npm run bench`: one line per figure, `name: value unit (target …)`; `-- --json` for JSON.
 import type { Figure } from './figure'
 import { findingsFigures } from './findings'
+import { clipAnalysisFigures } from './clipAnalysis'
 
-const suites: [string, () => Figure[] | Promise<Figure[]>][] = [['findings', findingsFigures]]
+const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
+  ['findings', findingsFigures],
+  ['audio', clipAnalysisFigures],
+]
 
 const json = process.argv.includes('--json')
 const only = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length)
