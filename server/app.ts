@@ -17,6 +17,7 @@ import { staffRoutes } from './routes/staff'
 import { panelRoutes } from './routes/panel'
 import { auditRoutes } from './routes/audit'
 import { mailRoutes } from './routes/mail'
+import { recipeRoutes } from './routes/recipes'
 
 export interface MountedTable {
   prefix: string
@@ -44,6 +45,7 @@ export function routeTables(ctx: AppContext): MountedTable[] {
     { prefix: '/api/panel', routes: panelRoutes(ctx) },
     { prefix: '/api/audit', routes: auditRoutes(ctx) },
     { prefix: '/api/mail', routes: mailRoutes(ctx) },
+    { prefix: '/api/recipes', routes: recipeRoutes(ctx) },
   ]
 }
 

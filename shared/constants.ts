@@ -41,3 +41,67 @@ export const LIMITS = {
 
 export const MAIL_STATUSES = ['pending', 'sent', 'failed'] as const
 export type MailStatus = (typeof MAIL_STATUSES)[number]
+
+/** Open strings in standard tuning, low to high, with their pitch in Hz at A4 = 440 Hz (ISO 16). */
+export const TUNINGS: Record<Instrument, { name: string; hz: number }[]> = {
+  violin: [
+    { name: 'G', hz: 196.0 },
+    { name: 'D', hz: 293.66 },
+    { name: 'A', hz: 440.0 },
+    { name: 'E', hz: 659.26 },
+  ],
+  viola: [
+    { name: 'C', hz: 130.81 },
+    { name: 'G', hz: 196.0 },
+    { name: 'D', hz: 293.66 },
+    { name: 'A', hz: 440.0 },
+  ],
+  cello: [
+    { name: 'C', hz: 65.41 },
+    { name: 'G', hz: 98.0 },
+    { name: 'D', hz: 146.83 },
+    { name: 'A', hz: 220.0 },
+  ],
+  // Orchestral tuning.
+  'double bass': [
+    { name: 'E', hz: 41.2 },
+    { name: 'A', hz: 55.0 },
+    { name: 'D', hz: 73.42 },
+    { name: 'G', hz: 98.0 },
+  ],
+}
+
+/** Typical vibrating lengths in mm (common practice; a 3/4 double bass). */
+export const DEFAULT_VIBRATING_LENGTH_MM: Record<Instrument, number> = {
+  violin: 328,
+  viola: 375,
+  cello: 695,
+  'double bass': 1045,
+}
+
+export const CORES = [
+  'solid steel',
+  'stranded steel',
+  'synthetic multifilament',
+  'gut',
+  'other',
+] as const
+export type Core = (typeof CORES)[number]
+
+export const WINDING_MATERIALS = [
+  'silver',
+  'aluminium',
+  'tungsten',
+  'chrome steel',
+  'titanium',
+  'copper',
+  'synthetic fibre',
+  'other',
+] as const
+export const WINDING_PROFILES = ['round', 'flat'] as const
+
+export const DAMPING_KINDS = ['none', 'compound', 'fibre layer', 'other'] as const
+export type DampingKind = (typeof DAMPING_KINDS)[number]
+
+export const RECIPE_STATUSES = ['draft', 'prototype', 'retired'] as const
+export type RecipeStatus = (typeof RECIPE_STATUSES)[number]

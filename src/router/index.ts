@@ -45,6 +45,12 @@ export const routes: RouteRecordRaw[] = [
         meta: { roles: STAFF, nav: 'Overview', navGroup: 'work', title: 'Overview' },
       },
       {
+        path: 'recipes',
+        name: 'recipes',
+        component: () => import('@/views/RecipesView.vue'),
+        meta: { roles: STAFF, nav: 'Recipes', navGroup: 'work', title: 'Recipes' },
+      },
+      {
         path: 'panel',
         name: 'panel',
         component: () => import('@/views/PanelView.vue'),
