@@ -1,0 +1,74 @@
+import type { TriangleOrder } from './triangle.ts'
+
+/** Identifiers come from the database (numbers) or from files (strings). */
+export type Id = string | number
+
+export type SessionFormat = 'pair' | 'rating' | 'triangle' | 'playtest'
+
+export interface DesignClip {
+  recipeId: Id
+  clipId: Id
+}
+
+/** Clips of one excerpt recorded in matched conditions: only the string differs. */
+export interface DesignClipSet {
+  excerptKey: string
+  clips: DesignClip[]
+}
+
+/** What a session stores to rebuild every player's plan, today or in a year. */
+export interface SessionDesignInput {
+  format: SessionFormat
+  recipes: Id[]
+  clipSets: DesignClipSet[]
+  /** Hidden duplicates per player. */
+  duplicates: number
+  seed: string
+}
+
+/** A clip as served: the code is all a player may see. */
+export interface BlindClip {
+  clipId: Id
+  recipeId: Id
+  code: number
+}
+
+interface TrialBase {
+  /** Index of the trial in the same plan that this one repeats; null for a first showing. */
+  repeatOf: number | null
+}
+
+export interface RatingTrialPlan extends TrialBase {
+  kind: 'rating'
+  excerptKey: string
+  clip: BlindClip
+}
+
+export interface PairTrialPlan extends TrialBase {
+  kind: 'pair'
+  excerptKey: string
+  a: BlindClip
+  b: BlindClip
+}
+
+export interface TriangleTrialPlan extends TrialBase {
+  kind: 'triangle'
+  excerptKey: string
+  order: TriangleOrder
+  samples: [BlindClip, BlindClip, BlindClip]
+  odd: 0 | 1 | 2
+}
+
+export interface PlaytestTrialPlan extends TrialBase {
+  kind: 'playtest'
+  recipeId: Id
+  code: number
+}
+
+export type PlannedTrial = RatingTrialPlan | PairTrialPlan | TriangleTrialPlan | PlaytestTrialPlan
+
+export interface PlayerPlan {
+  playerIndex: number
+  format: SessionFormat
+  trials: PlannedTrial[]
+}
