@@ -18,6 +18,8 @@ import { panelRoutes } from './routes/panel'
 import { auditRoutes } from './routes/audit'
 import { mailRoutes } from './routes/mail'
 import { recipeRoutes } from './routes/recipes'
+import { clipRoutes } from './routes/clips'
+import { excerptRoutes } from './routes/excerpts'
 
 export interface MountedTable {
   prefix: string
@@ -46,6 +48,8 @@ export function routeTables(ctx: AppContext): MountedTable[] {
     { prefix: '/api/audit', routes: auditRoutes(ctx) },
     { prefix: '/api/mail', routes: mailRoutes(ctx) },
     { prefix: '/api/recipes', routes: recipeRoutes(ctx) },
+    { prefix: '/api/clips', routes: clipRoutes(ctx) },
+    { prefix: '/api/excerpts', routes: excerptRoutes(ctx) },
   ]
 }
 

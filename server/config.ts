@@ -9,6 +9,8 @@ export interface Config {
   publicUrl: string
   databaseFile: string
   mediaDir: string
+  /** Largest single uploaded recording, in MB. */
+  uploadMaxMb: number
   smtpUrl: string | null
   mailFrom: string
   jwtSecret: string
@@ -56,6 +58,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     databaseFile,
     mediaDir: env.MEDIA_DIR || 'media',
+    uploadMaxMb: int(env.UPLOAD_MAX_MB, 200, 'UPLOAD_MAX_MB'),
     smtpUrl: env.SMTP_URL || null,
     mailFrom: env.MAIL_FROM || 'Ringdown <no-reply@ringdown.test>',
     jwtSecret: env.JWT_SECRET || localSecret(databaseFile),
@@ -82,6 +85,7 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
     publicUrl: 'http://localhost:3000',
     databaseFile: ':memory:',
     mediaDir: 'media',
+    uploadMaxMb: 200,
     smtpUrl: null,
     mailFrom: 'Ringdown <no-reply@ringdown.test>',
     jwtSecret: 'test-secret-test-secret-test-secret',

@@ -51,6 +51,17 @@ export const routes: RouteRecordRaw[] = [
         meta: { roles: STAFF, nav: 'Recipes', navGroup: 'work', title: 'Recipes' },
       },
       {
+        path: 'clips',
+        name: 'clips',
+        component: () => import('@/views/ClipsView.vue'),
+        meta: {
+          roles: ['admin', 'developer', 'analyst'],
+          nav: 'Clips',
+          navGroup: 'work',
+          title: 'Clips',
+        },
+      },
+      {
         path: 'panel',
         name: 'panel',
         component: () => import('@/views/PanelView.vue'),
