@@ -20,6 +20,10 @@ import { mailRoutes } from './routes/mail'
 import { recipeRoutes } from './routes/recipes'
 import { clipRoutes } from './routes/clips'
 import { excerptRoutes } from './routes/excerpts'
+import { sessionRoutes } from './routes/sessions'
+import { invitationRoutes } from './routes/invitations'
+import { playerRoutes } from './routes/player'
+import { plannerRoutes } from './routes/planner'
 
 export interface MountedTable {
   prefix: string
@@ -50,6 +54,10 @@ export function routeTables(ctx: AppContext): MountedTable[] {
     { prefix: '/api/recipes', routes: recipeRoutes(ctx) },
     { prefix: '/api/clips', routes: clipRoutes(ctx) },
     { prefix: '/api/excerpts', routes: excerptRoutes(ctx) },
+    { prefix: '/api/sessions', routes: sessionRoutes(ctx) },
+    { prefix: '/api/invitations', routes: invitationRoutes(ctx) },
+    { prefix: '/api/player', routes: playerRoutes(ctx) },
+    { prefix: '/api/planner', routes: plannerRoutes(ctx) },
   ]
 }
 

@@ -4,6 +4,7 @@ import { prepareDatabase } from './db/prepare'
 import { createApp } from './app'
 import { smtpMailer } from './mail/transport'
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp'
+import { startReminderTimer } from './services/reminders'
 
 // Only start-up and listening live here; everything testable is in createApp.
 const started = Date.now()
@@ -40,9 +41,12 @@ const server = app.listen(config.port, () => {
 // Mail that waited while SMTP was down goes out on the next tick of this timer.
 void ctx.outbox.deliverDue()
 const timer = setInterval(() => void ctx.outbox.deliverDue(), config.mail.pollMs || 10_000)
+// Automatic reminders a set number of days before each session's deadline.
+const stopReminders = startReminderTimer(ctx, Number(process.env.REMINDER_POLL_MS) || 15 * 60_000)
 
 async function shutdown() {
   clearInterval(timer)
+  stopReminders()
   server.close()
   await ctx.outbox.settle()
   await fake?.close()

@@ -62,6 +62,24 @@ export const routes: RouteRecordRaw[] = [
         },
       },
       {
+        path: 'sessions',
+        name: 'sessions',
+        component: () => import('@/views/SessionsView.vue'),
+        meta: { roles: STAFF, nav: 'Sessions', navGroup: 'work', title: 'Sessions' },
+      },
+      {
+        path: 'sessions/new',
+        name: 'session-new',
+        component: () => import('@/views/SessionNewView.vue'),
+        meta: { roles: ['admin', 'developer'], title: 'New session' },
+      },
+      {
+        path: 'sessions/:id(\\d+)',
+        name: 'session',
+        component: () => import('@/views/SessionView.vue'),
+        meta: { roles: STAFF, title: 'Session' },
+      },
+      {
         path: 'panel',
         name: 'panel',
         component: () => import('@/views/PanelView.vue'),

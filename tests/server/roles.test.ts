@@ -77,6 +77,7 @@ describe('route tables', () => {
         'post /api/auth/forgot',
         'get /api/auth/link',
         'post /api/auth/set-password',
+        'get /api/player/invitation',
       ].sort(),
     )
   })
