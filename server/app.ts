@@ -23,7 +23,9 @@ import { excerptRoutes } from './routes/excerpts'
 import { sessionRoutes } from './routes/sessions'
 import { invitationRoutes } from './routes/invitations'
 import { playerRoutes } from './routes/player'
+import { playerFlowRoutes } from './routes/playerFlow'
 import { plannerRoutes } from './routes/planner'
+import { findingsRoutes } from './routes/findings'
 
 export interface MountedTable {
   prefix: string
@@ -57,7 +59,9 @@ export function routeTables(ctx: AppContext): MountedTable[] {
     { prefix: '/api/sessions', routes: sessionRoutes(ctx) },
     { prefix: '/api/invitations', routes: invitationRoutes(ctx) },
     { prefix: '/api/player', routes: playerRoutes(ctx) },
+    { prefix: '/api/player', routes: playerFlowRoutes(ctx) },
     { prefix: '/api/planner', routes: plannerRoutes(ctx) },
+    { prefix: '/api/findings', routes: findingsRoutes(ctx) },
   ]
 }
 

@@ -2,18 +2,23 @@ import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import type { AppContext } from './context'
 import { DEMO_STAFF } from './demo'
-import { buildPlayerPlan, createRandom, type PlannedTrial } from './design/index.ts'
+import { buildPlayerPlan, createRandom, type BlindClip, type PlannedTrial } from './design/index.ts'
 import { newSeed } from './services/sessions'
 import { sessionInput } from './services/playerView'
 import { loadInvitation, queueInvitationMail } from './services/invitationRows'
 import { loadSession } from './services/sessionRows'
+import { storedAnswer } from './services/answerPayload'
 import { DEFAULT_ATTRIBUTES, type SessionFormat } from '../shared/schemas/sessions'
+import { trialAnswer, type TrialAnswer } from '../shared/schemas/player'
 
 /*
  * Demo sessions of Larchmere String Works in every state: a draft, an open rating session with
  * players part-way, a closed triangle test everybody finished, and a play-test followed over
- * time. The open sessions' invitations go through the outbox, so they can be read in the
- * Mailbox once the server has delivered them to the local mail fake.
+ * time; and two closed sessions whose findings tell a story (a clear brightness effect, no
+ * warmth difference, one player answering at random; a lean towards the light compound). The
+ * open sessions' invitations go through the outbox, so they can be read in the Mailbox once the
+ * server has delivered them to the local mail fake. Every answer is stored in the players' own
+ * format: blind codes and attribute keys, never a recipe.
  */
 
 const DAY = 86_400_000
@@ -35,11 +40,23 @@ interface DemoSession {
   progress: (number | 'all')[]
   label?: string
   parent?: string
+  /** Rated answers follow DAMPING_PROFILE closely instead of a loose lean. */
+  profiled?: boolean
+  /** Invitation index of a player who answers at random (the reliability flag's demo). */
+  randomPlayer?: number
 }
 
 const VIOLINISTS = ['ilse.marchetti', 'noor.halloran', 'saskia.lindqvist', 'wren.adebayo']
 const MORE_VIOLINISTS = ['zelda.okonkwo', 'caspian.mbeki', 'freya.nakamura-holt', 'hana.castellane']
 const CELLISTS = ['kofi.brandvold', 'tarek.villanueva', 'anselm.fairweather', 'emrys.kowalczyk']
+const LISTENING_PANEL = [
+  ...VIOLINISTS,
+  ...MORE_VIOLINISTS,
+  'lior.ferreira-quist',
+  'yusuf.kaminski',
+  'dalia.strand',
+  'ivo.renshaw',
+]
 const AUREL = [
   'Aurel A bare',
   'Aurel A light compound',
@@ -127,7 +144,54 @@ const SESSIONS: DemoSession[] = [
     label: 'week 2',
     parent: 'day 0',
   },
+  {
+    name: 'Aurel A damping treatments: first listening round',
+    purpose: 'Does damping darken the A string, and does it cost warmth?',
+    format: 'rating',
+    status: 'closed',
+    recipes: AUREL,
+    sets: [
+      ['scale', 'PF-01', 'VN-3'],
+      ['phrase', 'PF-02', 'VN-3'],
+    ],
+    duplicates: 2,
+    deadlineDays: -20,
+    instructions: 'Use headphones in a quiet room. Rate each recording on every scale.',
+    players: LISTENING_PANEL,
+    progress: LISTENING_PANEL.map(() => 'all'),
+    profiled: true,
+    randomPlayer: 6,
+  },
+  {
+    name: 'Aurel A compound weight: preference round one',
+    purpose: 'Which damping level do players prefer on the A string, and which sounds brighter?',
+    format: 'pair',
+    status: 'closed',
+    recipes: AUREL.slice(0, 3),
+    sets: [
+      ['scale', 'PF-01', 'VN-3'],
+      ['phrase', 'PF-02', 'VN-3'],
+    ],
+    duplicates: 1,
+    deadlineDays: -30,
+    instructions: 'Listen to both recordings as often as you like, then choose the one you prefer.',
+    players: LISTENING_PANEL.slice(0, 10),
+    progress: LISTENING_PANEL.slice(0, 10).map(() => 'all'),
+  },
 ]
+
+/**
+ * Panel means the closed listening round is built around, by recipe order (bare, light
+ * compound, heavy compound, fibre wrap): brightness falls with damping, bow response rises,
+ * warmth does not move.
+ */
+const DAMPING_PROFILE: Record<string, number[]> = {
+  brightness: [78, 60, 40, 58],
+  bow_response: [42, 52, 66, 55],
+  warmth: [55, 55, 55, 55],
+}
+/** Invented preference strengths (Bradley–Terry log abilities) for the pair round. */
+const PREFERENCE_STRENGTH = [0, 1.4, -0.6]
 
 async function recipeId(knex: Knex, name: string): Promise<number | null> {
   const row: { id: number } | undefined = await knex('recipes')
@@ -153,26 +217,96 @@ async function clipSet(
   return { key: `${excerpt} · ${performer} · ${instrument}`, clipIds: clipIds as number[] }
 }
 
-/** An invented answer that leans the way the demo recipes were made to sound. */
-function demoAnswer(t: PlannedTrial, recipeRank: Map<number, number>): Record<string, unknown> {
-  const lean = (id: string | number) => (recipeRank.get(Number(id)) ?? 0) * 12
-  const scale = (base: number) => Math.max(0, Math.min(100, Math.round(base + random.next() * 20)))
+interface AnswerContext {
+  recipeRank: Map<number, number>
+  playerIndex: number
+  trialIndex: number
+  demo: DemoSession
+}
+
+const clampScale = (x: number) => Math.max(0, Math.min(100, Math.round(x)))
+/** A draw fixed by its key alone, so the story holds whatever order the session seed deals. */
+const keyed = (...parts: (string | number)[]) => createRandom(parts.join('/')).next()
+
+function ratedValues(t: PlannedTrial, c: AnswerContext): Record<string, number> {
+  const recipe = Number(
+    t.kind === 'rating' ? t.clip.recipeId : t.kind === 'playtest' ? t.recipeId : 0,
+  )
+  const rank = c.recipeRank.get(recipe) ?? 0
+  const values: Record<string, number> = {}
+  if (!c.demo.profiled) {
+    const lean = rank * 12
+    values.brightness = clampScale(75 - lean + random.next() * 20)
+    values.bow_response = clampScale(40 + lean + random.next() * 20)
+    values.warmth = clampScale(45 + lean / 2 + random.next() * 20)
+    return values
+  }
+  const set = t.kind === 'rating' ? t.excerptKey : ''
+  const p = c.playerIndex
+  for (const [key, means] of Object.entries(DAMPING_PROFILE)) {
+    if (p === c.demo.randomPlayer) {
+      values[key] = erratic(p, c.trialIndex, t.repeatOf, key, means[rank])
+      continue
+    }
+    // Each player sits a little higher or lower on the scale; within a player, a rating
+    // scatters a few points, and a hidden repeat lands within a few points of the first.
+    const offset = (keyed('offset', p, key) - 0.5) * 16
+    const noise = (keyed('noise', p, recipe, key, set) - 0.5) * 12
+    const repeat = t.repeatOf === null ? 0 : (keyed('repeat', p, c.trialIndex, key) - 0.5) * 8
+    values[key] = clampScale(means[rank] + offset + noise + repeat)
+  }
+  return values
+}
+
+/**
+ * A player who rates all over the scale: wide scatter around the panel, and every hidden
+ * repeat at least 25 points away from its first rating, so the reliability rule must flag them.
+ */
+function erratic(
+  p: number,
+  trialIndex: number,
+  repeatOf: number | null,
+  key: string,
+  mean: number,
+): number {
+  const first = (k: number) => clampScale(mean + (keyed('erratic', p, k, key) - 0.5) * 70)
+  if (repeatOf === null) return first(trialIndex)
+  const base = first(repeatOf)
+  const jump = 25 + keyed('erratic/jump', p, trialIndex, key) * 20
+  return clampScale(base >= 50 ? base - jump : base + jump)
+}
+
+/** An invented answer in the players' own format, leaning the way the recipes were made. */
+function demoAnswer(t: PlannedTrial, c: AnswerContext): TrialAnswer {
   switch (t.kind) {
     case 'rating':
-    case 'playtest': {
-      const id = t.kind === 'rating' ? t.clip.recipeId : t.recipeId
+      return { kind: 'rating', values: ratedValues(t, c) }
+    case 'playtest':
+      return { kind: 'playtest', values: ratedValues(t, c), comment: '' }
+    case 'pair': {
+      const rank = (clip: BlindClip) => c.recipeRank.get(Number(clip.recipeId)) ?? 0
+      const strength = (clip: BlindClip) => PREFERENCE_STRENGTH[rank(clip)] ?? 0
+      const aWins = random.next() < 1 / (1 + Math.exp(strength(t.b) - strength(t.a)))
+      // Less damping (a lower rank) sounds brighter; more damping answers the bow sooner.
+      const [lighter, heavier] = rank(t.a) < rank(t.b) ? [t.a, t.b] : [t.b, t.a]
+      const pick = (chance: number, likely: BlindClip, other: BlindClip) =>
+        (random.next() < chance ? likely : other).code
       return {
-        ratings: {
-          brightness: scale(75 - lean(id)),
-          bow_response: scale(40 + lean(id)),
-          warmth: scale(45 + lean(id) / 2),
+        kind: 'pair',
+        preferred: (aWins ? t.a : t.b).code,
+        more: {
+          brightness: pick(0.85, lighter, heavier),
+          bow_response: pick(0.75, heavier, lighter),
+          warmth: pick(0.5, lighter, heavier),
         },
       }
     }
-    case 'pair':
-      return { preferred: random.next() < 0.5 ? 0 : 1 }
-    case 'triangle':
-      return { odd: random.next() < 0.7 ? t.odd : (t.odd + 1) % 3 }
+    case 'triangle': {
+      // The last cellist never hears it; the others always do.
+      const hears = c.playerIndex !== 3
+      const chosen = hears ? t.odd : (t.odd + 1) % 3
+      return { kind: 'triangle', odd: t.samples[chosen].code }
+    }
   }
 }
 
@@ -262,7 +396,16 @@ async function invitePlayers(
       await trx('answers').insert({
         invitation_id: invId,
         trial_index: k,
-        payload: JSON.stringify(demoAnswer(t, recipeRank)),
+        // Checked against the players' answer format and stored as the answer service stores
+        // a player's own answer, so resuming and findings read it back alike.
+        payload: JSON.stringify(
+          storedAnswer(
+            t,
+            trialAnswer.parse(
+              demoAnswer(t, { recipeRank, playerIndex: index, trialIndex: k, demo }),
+            ),
+          ),
+        ),
         answered_at: at(k + 1),
       })
     if (session.status === 'open') {

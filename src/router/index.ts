@@ -35,6 +35,13 @@ export const routes: RouteRecordRaw[] = [
     meta: { title: 'Choose a password' },
   },
   {
+    // Players arrive from an invitation link with no sign-in: outside the staff shell.
+    path: '/p/:token',
+    name: 'player',
+    component: () => import('@/views/PlayerView.vue'),
+    meta: { title: 'Your invitation' },
+  },
+  {
     path: '/',
     component: () => import('@/components/AppShell.vue'),
     children: [
@@ -78,6 +85,12 @@ export const routes: RouteRecordRaw[] = [
         name: 'session',
         component: () => import('@/views/SessionView.vue'),
         meta: { roles: STAFF, title: 'Session' },
+      },
+      {
+        path: 'sessions/:id(\\d+)/findings',
+        name: 'findings',
+        component: () => import('@/views/FindingsView.vue'),
+        meta: { roles: STAFF, title: 'Findings' },
       },
       {
         path: 'panel',

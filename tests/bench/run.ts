@@ -2,10 +2,12 @@
 import type { Figure } from './figure'
 import { findingsFigures } from './findings'
 import { clipAnalysisFigures } from './clipAnalysis'
+import { playerPageFigures } from './playerPage'
 
 const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['findings', findingsFigures],
   ['audio', clipAnalysisFigures],
+  ['player', playerPageFigures],
 ]
 
 const json = process.argv.includes('--json')

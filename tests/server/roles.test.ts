@@ -78,6 +78,13 @@ describe('route tables', () => {
         'get /api/auth/link',
         'post /api/auth/set-password',
         'get /api/player/invitation',
+        'get /api/player/state',
+        'post /api/player/consent',
+        'post /api/player/headphone',
+        'post /api/player/level',
+        'get /api/player/plan',
+        'get /api/player/audio/:ref',
+        'put /api/player/answers/:trialIndex',
       ].sort(),
     )
   })

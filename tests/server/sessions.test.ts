@@ -462,7 +462,7 @@ describe('the demo sessions', () => {
     const closed = list.find((s) => s.format === 'triangle')!
     const pending = await d.knex('outbox').where({ kind: 'session_invitation' }).count({ n: '*' })
 
-    expect(made).toBe(5)
+    expect(made).toBe(7)
     expect(again).toBe(0)
     expect(new Set(list.map((s) => s.status))).toEqual(new Set(['draft', 'open', 'closed']))
     expect(invitations.map((i: { status: string }) => i.status).slice(0, 4)).toEqual([
