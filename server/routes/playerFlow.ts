@@ -12,7 +12,7 @@ import {
   recordHeadphoneCheck,
 } from '../services/playerProgress'
 import { playerPlanView } from '../services/playerPlan'
-import { playerAudioFile } from '../services/playerAudio'
+import { playerAudioBytes } from '../services/playerAudio'
 import { saveAnswer } from '../services/playerAnswers'
 import { playerLinkQuery } from '../../shared/schemas/sessions'
 import { headphoneCheckBody, saveAnswerBody, tokenBody } from '../../shared/schemas/player'
@@ -81,7 +81,7 @@ export function playerFlowRoutes(ctx: AppContext): RouteDef[] {
       path: '/audio/:ref',
       roles: 'public',
       handler: async (req, res) => {
-        await sendAudio(req, res, await playerAudioFile(ctx, String(req.params.ref)))
+        sendAudio(req, res, await playerAudioBytes(ctx, String(req.params.ref)))
       },
     },
     {

@@ -1,8 +1,4 @@
-import { createReadStream } from 'node:fs'
-import { stat } from 'node:fs/promises'
-import { pipeline } from 'node:stream/promises'
 import type { Request, Response } from 'express'
-import { notFound } from '../errors'
 
 /** One byte range of `size`, or 'whole' when the header asks for none we serve, or null. */
 export function byteRange(
@@ -23,17 +19,12 @@ export function byteRange(
 }
 
 /**
- * A rendition with Range support, written here rather than through res.sendFile, which always
+ * Audio bytes with Range support, written here rather than through res.sendFile, which always
  * adds an ETag from size and time: a value that could match the same recording served under
  * another code and so tell a listener two samples are one.
  */
-export async function sendAudio(req: Request, res: Response, path: string): Promise<void> {
-  const size = await stat(path).then(
-    (s) => s.size,
-    () => {
-      throw notFound('That recording')
-    },
-  )
+export function sendAudio(req: Request, res: Response, bytes: Uint8Array): void {
+  const size = bytes.length
   res.setHeader('Content-Type', 'audio/wav')
   res.setHeader('Cache-Control', 'private, no-cache')
   res.setHeader('Accept-Ranges', 'bytes')
@@ -53,6 +44,5 @@ export async function sendAudio(req: Request, res: Response, path: string): Prom
     res.end()
     return
   }
-  // A listener who skips ahead closes the request; that is not a server fault.
-  await pipeline(createReadStream(path, { start, end }), res).catch(() => undefined)
+  res.end(Buffer.from(bytes.buffer, bytes.byteOffset + start, end - start + 1))
 }

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto'
 import { mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
@@ -56,13 +57,19 @@ async function walk(app: RingdownApp, token: string): Promise<Seen[]> {
   const plan = keep('plan', await api().get('/api/player/plan').query({ token })).body.plan
   const keys: string[] = (plan?.attributes ?? []).map((a: { key: string }) => a.key)
   for (const trial of plan?.trials ?? []) {
+    // Two servings of one recording (a triangle's doubled sample) must not be byte-identical.
+    const served = new Set<string>()
     for (const clip of trial.clips) {
-      keep('audio', await api().get(clip.audioUrl).buffer(true).parse(binary))
+      const audio = keep('audio', await api().get(clip.audioUrl).buffer(true).parse(binary))
+      if (audio.status === 200) served.add(createHash('sha256').update(audio.body).digest('hex'))
+      else served.add(`${clip.audioUrl}:${audio.status}`)
       keep(
         'audio range',
         await api().get(clip.audioUrl).set('Range', 'bytes=0-4095').buffer(true).parse(binary),
       )
     }
+    if (served.size !== trial.clips.length)
+      throw new Error(`trial ${trial.index}: two servings arrived as the same bytes`)
     const put = () =>
       api()
         .put(`/api/player/answers/${trial.index}`)

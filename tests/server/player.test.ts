@@ -216,6 +216,22 @@ describe('saving an answer', () => {
     })
   })
 
+  it('serves the doubled sample of a triangle as bytes of its own', async () => {
+    const { invited } = await study('triangle', 1)
+    const trial = (await consented(invited[0])).trials[0]
+    const bodies = await Promise.all(
+      trial.clips.map(async (c: { audioUrl: string }) => {
+        const res = await api().get(c.audioUrl).buffer(true).parse(binary)
+        expect(res.status).toBe(200)
+        return (res.body as Buffer).toString('base64')
+      }),
+    )
+
+    // Two of the three are one recording; still no two downloads may match.
+    expect(new Set(bodies).size).toBe(3)
+    expect(new Set(bodies.map((b) => b.length)).size).toBe(1)
+  })
+
   it('stores one row when the same answer arrives many times at once', async () => {
     const { invited } = await study('triangle')
     const p = invited[0]
