@@ -1,4 +1,5 @@
 import jwt from 'jsonwebtoken'
+import { secretKey } from './secretKey'
 import type { Clock } from '../clock'
 
 const AUDIENCE = 'invitation'
@@ -31,7 +32,7 @@ export function signInvitation(
       iat: seconds(clock),
       exp: deadlineEnd(deadline).getTime() / 1000,
     },
-    secret,
+    secretKey(secret),
     { algorithm: 'HS256', audience: AUDIENCE },
   )
 }
@@ -43,7 +44,7 @@ export function signInvitation(
  */
 export function verifyInvitation(secret: string, token: string): InvitationClaims | null {
   try {
-    const claims = jwt.verify(token, secret, {
+    const claims = jwt.verify(token, secretKey(secret), {
       algorithms: ['HS256'],
       audience: AUDIENCE,
       ignoreExpiration: true,

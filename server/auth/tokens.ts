@@ -1,4 +1,5 @@
 import jwt from 'jsonwebtoken'
+import { secretKey } from './secretKey'
 import type { Clock } from '../clock'
 
 export const SESSION_COOKIE = 'rd_session'
@@ -20,7 +21,7 @@ export function signSession(
   tokenVersion: number,
   minutes: number,
 ): string {
-  return jwt.sign({ sub: userId, tv: tokenVersion, iat: seconds(clock) }, secret, {
+  return jwt.sign({ sub: userId, tv: tokenVersion, iat: seconds(clock) }, secretKey(secret), {
     algorithm: 'HS256',
     expiresIn: minutes * 60,
     audience: 'session',
@@ -29,7 +30,7 @@ export function signSession(
 
 export function verifySession(secret: string, clock: Clock, token: string): SessionClaims | null {
   try {
-    const claims = jwt.verify(token, secret, {
+    const claims = jwt.verify(token, secretKey(secret), {
       algorithms: ['HS256'],
       audience: 'session',
       clockTimestamp: seconds(clock),
@@ -54,7 +55,7 @@ export function signLink(
   claims: LinkClaims,
   expiresInSeconds: number,
 ): string {
-  return jwt.sign({ ...claims, iat: seconds(clock) }, secret, {
+  return jwt.sign({ ...claims, iat: seconds(clock) }, secretKey(secret), {
     algorithm: 'HS256',
     expiresIn: expiresInSeconds,
     audience: 'link',
@@ -67,7 +68,7 @@ export function verifyLink(
   token: string,
 ): (LinkClaims & { exp: number }) | 'expired' | null {
   try {
-    const claims = jwt.verify(token, secret, {
+    const claims = jwt.verify(token, secretKey(secret), {
       algorithms: ['HS256'],
       audience: 'link',
       clockTimestamp: seconds(clock),

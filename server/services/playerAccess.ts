@@ -4,6 +4,7 @@ import { AppError, conflict } from '../errors'
 import { deadlineEnd, verifyInvitation } from '../auth/invitationTokens'
 import { resolvePlayerLink } from './playerLink'
 import { loadSession, type SessionRow } from './sessionRows'
+import { syncRead } from '../db/syncTransaction'
 import type { InvitationDbRow } from './invitationRows'
 
 /** The invitation row with the player's steps before the trials. */
@@ -40,6 +41,32 @@ export async function openForAnswers(ctx: AppContext, token: string): Promise<Pl
 }
 
 /**
+ * The answer path's version of openForAnswers: one synchronous read when all is well (the
+ * common case, hundreds of times a second at peak); anything unusual falls back to the full
+ * check, which says exactly what is wrong with the link.
+ */
+export async function openForAnswersQuickly(ctx: AppContext, token: string): Promise<PlayerAccess> {
+  const claims = verifyInvitation(ctx.config.jwtSecret, token)
+  if (claims) {
+    const found = await syncRead(ctx.knex, (db) => {
+      const inv = db.get<PlayerInvitationRow>('select * from invitations where id = ?', claims.sub)
+      const session =
+        inv && db.get<SessionRow>('select * from sessions where id = ?', inv.session_id)
+      return inv && session ? { inv, session } : null
+    })
+    if (
+      found &&
+      !found.inv.revoked_at &&
+      found.inv.token_id === claims.jti &&
+      found.session.status === 'open' &&
+      ctx.clock.now() < deadlineEnd(found.session.deadline)
+    )
+      return { ...found, canAnswer: true }
+  }
+  return openForAnswers(ctx, token)
+}
+
+/**
  * A link that only reads: after the session closes or its deadline passes the player may still
  * see what they gave, but a revoked or replaced link shows nothing.
  */
@@ -62,18 +89,29 @@ export async function openForReading(ctx: AppContext, token: string): Promise<Pl
  * the first check and the write still stops it.
  */
 export async function assertStillOpen(trx: Knex, access: PlayerAccess, now: Date): Promise<void> {
-  const inv: PlayerInvitationRow | undefined = await trx('invitations')
-    .where({ id: access.inv.id })
-    .first()
-  const session: SessionRow | undefined = await trx('sessions')
-    .where({ id: access.session.id })
-    .first()
-  if (!inv || inv.revoked_at || inv.token_id !== access.inv.token_id)
+  const row: StillOpenRow | undefined = await trx('invitations as i')
+    .join('sessions as s', 's.id', 'i.session_id')
+    .where('i.id', access.inv.id)
+    .first('i.*', 's.status as s_status', 's.deadline as s_deadline')
+  checkStillOpen(row, access, now)
+}
+
+/** The invitation row with its session's status and deadline, read in one join. */
+export type StillOpenRow = PlayerInvitationRow & { s_status: string; s_deadline: string }
+
+export const STILL_OPEN_SQL =
+  'select i.*, s.status as s_status, s.deadline as s_deadline from invitations i ' +
+  'join sessions s on s.id = i.session_id where i.id = ?'
+
+/** The re-check on a freshly read row; refreshes `access.inv` when the link still works. */
+export function checkStillOpen(row: StillOpenRow | undefined, access: PlayerAccess, now: Date) {
+  if (!row || row.revoked_at || row.token_id !== access.inv.token_id)
     throw new GoneForAnswers('This invitation has been withdrawn by the organisers.')
-  if (!session || session.status !== 'open')
+  if (row.s_status !== 'open')
     throw new GoneForAnswers('This session has closed; answers can no longer change.')
-  if (now >= deadlineEnd(session.deadline))
+  if (now >= deadlineEnd(row.s_deadline))
     throw new GoneForAnswers('The deadline has passed; answers can no longer change.')
+  const { s_status: _status, s_deadline: _deadline, ...inv } = row
   access.inv = inv
 }
 

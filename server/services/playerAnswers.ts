@@ -1,6 +1,13 @@
 import type { AppContext } from '../context'
 import { validationFailed } from '../errors'
-import { assertConsent, assertStillOpen, openForAnswers } from './playerAccess'
+import {
+  assertConsent,
+  checkStillOpen,
+  openForAnswersQuickly,
+  STILL_OPEN_SQL,
+  type StillOpenRow,
+} from './playerAccess'
+import { syncTransaction } from '../db/syncTransaction'
 import { plannedTrials } from './playerPlan'
 import { answerProblems, type GivenAnswer } from './answerCheck'
 import { sameAnswer, storedAnswer } from './answerPayload'
@@ -18,50 +25,68 @@ export async function saveAnswer(
   trialIndex: number,
   answer: GivenAnswer,
 ): Promise<SaveAnswerResult> {
-  const access = await openForAnswers(ctx, token)
+  const access = await openForAnswersQuickly(ctx, token)
   assertConsent(access.inv)
   const now = ctx.clock.now()
-  return ctx.knex.transaction(async (trx) => {
-    await assertStillOpen(trx, access, now)
-    const { inv, session } = access
-    const trials = await plannedTrials(trx, session, inv)
-    const trial = trials[trialIndex]
-    if (!trial)
-      throw validationFailed('There is no such trial in your session', {
-        fields: { trialIndex: [`Your session has trials 1 to ${trials.length}`] },
-      })
-    const problems = answerProblems(trial, answer, {
-      attributeKeys: designOf(session).attributes.map((a) => a.key),
-      allowNoPreference: Boolean(session.allow_no_preference),
+  const { session } = access
+  // Checking the answer needs no lock: the plan is fixed once anyone has answered.
+  const trials = await plannedTrials(ctx.knex, session, access.inv)
+  const trial = trials[trialIndex]
+  if (!trial)
+    throw validationFailed('There is no such trial in your session', {
+      fields: { trialIndex: [`Your session has trials 1 to ${trials.length}`] },
     })
-    if (Object.keys(problems).length)
-      throw validationFailed('This answer does not fit the trial', { fields: problems })
+  const problems = answerProblems(trial, answer, {
+    attributeKeys: designOf(session).attributes.map((a) => a.key),
+    allowNoPreference: Boolean(session.allow_no_preference),
+  })
+  if (Object.keys(problems).length)
+    throw validationFailed('This answer does not fit the trial', { fields: problems })
+  const payload = JSON.stringify(storedAnswer(trial, answer))
 
-    const key = { invitation_id: inv.id, trial_index: trialIndex }
-    const existing: { id: number; payload: string } | undefined = await trx('answers')
-      .where(key)
-      .first('id', 'payload')
+  // One synchronous transaction: the busiest write path holds the connection for the least time.
+  return syncTransaction(ctx.knex, (db) => {
+    checkStillOpen(db.get<StillOpenRow>(STILL_OPEN_SQL, access.inv.id), access, now)
+    const { inv } = access
+    // This trial's stored answer and the player's count in one read.
+    const mine = db.get<{ n: number; id: number | null; payload: string | null }>(
+      'select count(*) as n, max(case when trial_index = ? then id end) as id, ' +
+        'max(case when trial_index = ? then payload end) as payload ' +
+        'from answers where invitation_id = ?',
+      trialIndex,
+      trialIndex,
+      inv.id,
+    )!
+    const existing = mine.id === null ? undefined : { id: mine.id, payload: mine.payload! }
     const duplicate = existing !== undefined && sameAnswer(existing.payload, answer)
+    const at = now.toISOString()
     if (!duplicate) {
-      const row = {
-        payload: JSON.stringify(storedAnswer(trial, answer)),
-        answered_at: now.toISOString(),
-      }
-      if (existing) await trx('answers').where({ id: existing.id }).update(row)
-      else await trx('answers').insert({ ...key, ...row })
+      if (existing)
+        db.run(
+          'update answers set payload = ?, answered_at = ? where id = ?',
+          payload,
+          at,
+          existing.id,
+        )
+      else
+        db.run(
+          'insert into answers (invitation_id, trial_index, payload, answered_at) values (?, ?, ?, ?)',
+          inv.id,
+          trialIndex,
+          payload,
+          at,
+        )
     }
-
-    const [{ n }] = (await trx('answers').where({ invitation_id: inv.id }).count({ n: '*' })) as {
-      n: number
-    }[]
-    const answered = Number(n)
+    const answered = Number(mine.n) + (existing ? 0 : 1)
     const done = answered >= trials.length
-    await trx('invitations')
-      .where({ id: inv.id })
-      .update({
-        started_at: inv.started_at ?? now.toISOString(),
-        completed_at: inv.completed_at ?? (done ? now.toISOString() : null),
-      })
-    return { saved: true, duplicate, answered, trialCount: trials.length, done }
+    // Only the first answer and the last one change the invitation's progress times.
+    if (!inv.started_at || (done && !inv.completed_at))
+      db.run(
+        'update invitations set started_at = ?, completed_at = ? where id = ?',
+        inv.started_at ?? at,
+        inv.completed_at ?? (done ? at : null),
+        inv.id,
+      )
+    return { saved: true as const, duplicate, answered, trialCount: trials.length, done }
   })
 }

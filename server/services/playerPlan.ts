@@ -10,13 +10,25 @@ import type { PlayerClipView, PlayerPlanView, PlayerTrialView } from '../../shar
 /** Waveforms are drawn on a phone at most this many columns wide; more is only bytes. */
 export const PEAK_BUCKETS = 600
 
+// Plans are pure functions of the stored design, so a player's plan is kept between their
+// saves; the key changes whenever the session row does, so an edited design is never served
+// from an old plan.
+const plans = new Map<string, PlannedTrial[]>()
+const PLANS_MAX = 2000
+
 /** This player's trials in serving order, with the server-side truth behind every code. */
 export async function plannedTrials(
   db: Knex,
   session: SessionRow,
   inv: Pick<PlayerInvitationRow, 'player_index'>,
 ): Promise<PlannedTrial[]> {
-  return planFor(await sessionInput(db, session), inv.player_index).trials
+  const key = `${session.id}:${session.updated_at}:${session.seed}:${inv.player_index}`
+  const hit = plans.get(key)
+  if (hit) return hit
+  const trials = planFor(await sessionInput(db, session), inv.player_index).trials
+  plans.set(key, trials)
+  if (plans.size > PLANS_MAX) plans.delete(plans.keys().next().value!)
+  return trials
 }
 
 /**

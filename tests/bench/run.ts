@@ -3,11 +3,13 @@ import type { Figure } from './figure'
 import { findingsFigures } from './findings'
 import { clipAnalysisFigures } from './clipAnalysis'
 import { playerPageFigures } from './playerPage'
+import { submissionFigures } from './submissions'
 
 const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['findings', findingsFigures],
   ['audio', clipAnalysisFigures],
   ['player', playerPageFigures],
+  ['submissions', submissionFigures],
 ]
 
 const json = process.argv.includes('--json')
@@ -21,3 +23,5 @@ for (const [name, run] of suites) {
   }
 }
 if (json) console.log(JSON.stringify({ figures }))
+// Servers and browsers the suites started are closed; leave no handle keeping the process up.
+process.exit(0)
