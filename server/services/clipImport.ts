@@ -1,7 +1,7 @@
-import { parse } from 'csv-parse/sync'
 import type { Knex } from 'knex'
 import type { AppContext } from '../context'
-import { badRequest, validationFailed } from '../errors'
+import { readCsvTable } from './csvTable'
+import { validationFailed } from '../errors'
 import type { Actor } from './audit'
 import type { UploadedFile } from './clipStorage'
 import { RecordingRefused } from './clipAnalysis'
@@ -26,32 +26,13 @@ const COLUMN_OF: Record<string, string> = {
 }
 
 function readManifest(text: string): Record<string, string>[] {
-  let records: Record<string, string>[]
-  try {
-    records = parse(text, {
-      columns: (header: string[]) => header.map((h) => h.trim().toLowerCase().replace(/\s+/g, '_')),
-      bom: true,
-      skip_empty_lines: true,
-      trim: true,
-    })
-  } catch (err) {
-    throw badRequest(`The manifest is not a readable CSV: ${(err as Error).message}`)
-  }
-  if (records.length === 0) throw badRequest('The manifest has no rows under its header')
-  if (records.length > CLIP_LIMITS.batchMaxFiles)
-    throw badRequest(`At most ${CLIP_LIMITS.batchMaxFiles} files per manifest`)
-  const header = Object.keys(records[0])
-  const missing = MANIFEST_REQUIRED.filter((c) => !header.includes(c))
-  const unknown = header.filter((c) => !(MANIFEST_COLUMNS as readonly string[]).includes(c))
-  if (missing.length || unknown.length) {
-    const parts = []
-    if (missing.length) parts.push(`missing column(s): ${missing.join(', ')}`)
-    if (unknown.length) parts.push(`unknown column(s): ${unknown.join(', ')}`)
-    throw badRequest(
-      `The manifest's header row does not fit: ${parts.join('; ')}. Expected: ${MANIFEST_COLUMNS.join(', ')}`,
-    )
-  }
-  return records
+  return readCsvTable(text, {
+    what: 'manifest',
+    rowName: 'file',
+    columns: MANIFEST_COLUMNS,
+    required: MANIFEST_REQUIRED,
+    maxRows: CLIP_LIMITS.batchMaxFiles,
+  })
 }
 
 async function recipeIdOf(db: Knex, row: ManifestRow): Promise<number | string> {

@@ -1,6 +1,6 @@
-import { parse } from 'csv-parse/sync'
 import type { AppContext } from '../context'
-import { badRequest, validationFailed } from '../errors'
+import { validationFailed } from '../errors'
+import { readCsvTable } from './csvTable'
 import { recordAudit, type Actor } from './audit'
 import { insertPlayer } from './panel'
 import { LIMITS } from '../../shared/constants'
@@ -18,33 +18,13 @@ export async function importPanelCsv(
   text: string,
   actor: Actor,
 ): Promise<{ imported: number }> {
-  let records: Record<string, string>[]
-  try {
-    records = parse(text, {
-      columns: (header: string[]) => header.map((h) => h.trim().toLowerCase().replace(/\s+/g, '_')),
-      bom: true,
-      skip_empty_lines: true,
-      trim: true,
-      relax_column_count: false,
-    })
-  } catch (err) {
-    throw badRequest(`The file is not a readable CSV: ${(err as Error).message}`)
-  }
-  if (records.length === 0) throw badRequest('The file has no player rows under its header')
-  if (records.length > LIMITS.csvMaxRows)
-    throw badRequest(`At most ${LIMITS.csvMaxRows} players per file`)
-
-  const header = Object.keys(records[0])
-  const missing = REQUIRED.filter((c) => !header.includes(c))
-  const unknown = header.filter((c) => !(PLAYER_CSV_COLUMNS as readonly string[]).includes(c))
-  if (missing.length || unknown.length) {
-    const parts = []
-    if (missing.length) parts.push(`missing column(s): ${missing.join(', ')}`)
-    if (unknown.length) parts.push(`unknown column(s): ${unknown.join(', ')}`)
-    throw badRequest(
-      `The header row does not fit: ${parts.join('; ')}. Expected: ${PLAYER_CSV_COLUMNS.join(', ')}`,
-    )
-  }
+  const records = readCsvTable(text, {
+    what: 'file',
+    rowName: 'player',
+    columns: PLAYER_CSV_COLUMNS,
+    required: REQUIRED,
+    maxRows: LIMITS.csvMaxRows,
+  })
 
   const rows: CsvRowError[] = []
   const valid: { line: number; data: ReturnType<typeof playerCsvRow.parse> }[] = []
