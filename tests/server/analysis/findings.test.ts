@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest'
+import { roundingTimes } from './roundingTimes.ts'
 import {
   computeFindings,
   holm,
@@ -95,32 +96,9 @@ describe('computeFindings on reference data', () => {
 describe('computeFindings with three recipes', () => {
   // RoundingTimes (Hollander & Wolfe 1973 p. 140; full matrix in R's friedman.test.Rd), ×10 so
   // it sits on the rating scale; scaling does not change within-player ranks.
-  const roundingTimes = [
-    [5.4, 5.5, 5.55],
-    [5.85, 5.7, 5.75],
-    [5.2, 5.6, 5.5],
-    [5.55, 5.5, 5.4],
-    [5.9, 5.85, 5.7],
-    [5.45, 5.55, 5.6],
-    [5.4, 5.4, 5.35],
-    [5.45, 5.5, 5.35],
-    [5.25, 5.15, 5.0],
-    [5.85, 5.8, 5.7],
-    [5.25, 5.2, 5.1],
-    [5.65, 5.55, 5.45],
-    [5.6, 5.35, 5.45],
-    [5.05, 5.0, 4.95],
-    [5.5, 5.5, 5.4],
-    [5.45, 5.55, 5.5],
-    [5.55, 5.55, 5.35],
-    [5.45, 5.5, 5.55],
-    [5.5, 5.45, 5.25],
-    [5.65, 5.6, 5.4],
-    [5.7, 5.65, 5.55],
-    [6.3, 6.3, 6.25],
-  ].map((row) => row.map((v) => Math.round(v * 100) / 10))
+  const scaled = roundingTimes.map((row) => row.map((v) => Math.round(v * 100) / 10))
   const findings = computeFindings({
-    ratings: ratingsFrom(roundingTimes, 'brightness', 0),
+    ratings: ratingsFrom(scaled, 'brightness', 0),
     recipes,
     attributes: [brightness],
   })

@@ -1,32 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { friedman } from '../../../server/analysis/index.ts'
-
-// RoundingTimes: Hollander & Wolfe (1973) p. 140, base-running times for 22 players with three
-// methods (round out, narrow angle, wide angle); full matrix as printed in R's friedman.test.Rd.
-const roundingTimes = [
-  [5.4, 5.5, 5.55],
-  [5.85, 5.7, 5.75],
-  [5.2, 5.6, 5.5],
-  [5.55, 5.5, 5.4],
-  [5.9, 5.85, 5.7],
-  [5.45, 5.55, 5.6],
-  [5.4, 5.4, 5.35],
-  [5.45, 5.5, 5.35],
-  [5.25, 5.15, 5.0],
-  [5.85, 5.8, 5.7],
-  [5.25, 5.2, 5.1],
-  [5.65, 5.55, 5.45],
-  [5.6, 5.35, 5.45],
-  [5.05, 5.0, 4.95],
-  [5.5, 5.5, 5.4],
-  [5.45, 5.55, 5.5],
-  [5.55, 5.55, 5.35],
-  [5.45, 5.5, 5.55],
-  [5.5, 5.45, 5.25],
-  [5.65, 5.6, 5.4],
-  [5.7, 5.65, 5.55],
-  [6.3, 6.3, 6.25],
-]
+import { roundingTimes } from './roundingTimes.ts'
 
 describe('friedman', () => {
   it('reproduces R friedman.test(RoundingTimes), with its ties', () => {
