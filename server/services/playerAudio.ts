@@ -85,17 +85,20 @@ async function paddedSize(ctx: AppContext, s: Serving): Promise<number> {
 const recent = new Map<string, Uint8Array>()
 const RECENT_MAX = 32
 
-/** The bytes of one serving: padded to its excerpt's size, with its own inaudible variation. */
+/**
+ * The bytes of one serving: padded to its excerpt's size, with its own inaudible variation.
+ * Each check of the link is made on every request; the padding and noise are worked out once
+ * per address, since a session's recordings cannot change while it is open.
+ */
 export async function playerAudioBytes(ctx: AppContext, ref: string): Promise<Uint8Array> {
   const s = await serving(ctx, ref)
-  const size = await paddedSize(ctx, s)
-  const key = `${ref}:${s.path}:${size}`
+  const key = `${ref}:${s.path}`
   const hit = recent.get(key)
   if (hit) return hit
   const file = await readFile(s.path).catch(() => {
     throw notFound('That recording')
   })
-  const bytes = servingVariant(new Uint8Array(file), ref, size)
+  const bytes = servingVariant(new Uint8Array(file), ref, await paddedSize(ctx, s))
   recent.set(key, bytes)
   if (recent.size > RECENT_MAX) recent.delete(recent.keys().next().value!)
   return bytes
