@@ -1,7 +1,7 @@
 import bcrypt from 'bcryptjs'
 import type { Knex } from 'knex'
-import { DEMO_PASSWORD, DEMO_STAFF } from '../server/demo'
-import { insertPlayer } from '../server/services/panel'
+import { DEMO_PASSWORD, DEMO_STAFF } from '../server/auth/demoAccounts'
+import { insertPlayer } from '../server/panel/service'
 import type { Instrument, PlayerLevel } from '../shared/constants'
 
 /*

@@ -1,7 +1,7 @@
 import type { Knex } from 'knex'
 import { systemClock } from '../server/clock'
-import { seedDemoClips } from '../server/demoClips'
-import { mediaFolders } from '../server/services/clipStorage'
+import { seedDemoClips } from './demo/clips'
+import { mediaFolders } from '../server/clips/storage'
 
 /**
  * Demo recordings for the demo recipes (seeded just before). Skipped in production, once any

@@ -3,7 +3,7 @@ import pino from 'pino'
 import { systemClock } from '../server/clock'
 import { loadConfig } from '../server/config'
 import { createOutbox } from '../server/mail/outbox'
-import { seedDemoSessions } from '../server/demoSessions'
+import { seedDemoSessions } from './demo/sessions'
 import type { AppContext } from '../server/context'
 
 /**

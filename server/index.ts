@@ -4,7 +4,7 @@ import { prepareDatabase } from './db/prepare'
 import { createApp } from './app'
 import { smtpMailer } from './mail/transport'
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp'
-import { startReminderTimer } from './services/reminders'
+import { startReminderTimer } from './invitations/reminders'
 
 // Only start-up and listening live here; everything testable is in createApp.
 const started = Date.now()

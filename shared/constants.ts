@@ -8,6 +8,15 @@ export type Role = (typeof ROLES)[number]
 export const STAFF_ROLES = ['admin', 'developer', 'analyst'] as const
 export type StaffRole = (typeof STAFF_ROLES)[number]
 
+// Who may do what, written once: route tables, the client's route guards and views use these.
+/** Every staff role. */
+export const STAFF: readonly Role[] = STAFF_ROLES
+/** Those who make things: recipes, clips, sessions, invitations. */
+export const EDITORS: readonly Role[] = ['admin', 'developer']
+/** Those who may exclude panelists from findings. */
+export const EXCLUDERS: readonly Role[] = ['admin', 'analyst']
+export const ADMIN: readonly Role[] = ['admin']
+
 export const ROLE_LABELS: Record<Role, string> = {
   admin: 'Admin',
   developer: 'Product developer',

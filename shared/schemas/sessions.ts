@@ -237,22 +237,22 @@ export interface SessionDetail extends SessionSummary {
 }
 
 /** A clip as a player meets it: a code and an address that says nothing about the recipe. */
-export interface PlayerClip {
+export interface PreviewClip {
   code: number
   audioUrl: string
 }
 
-export interface PlayerTrial {
+export interface PreviewTrial {
   index: number
   kind: SessionFormat
   /** Listening formats: one clip (rating), two (pair) or three (triangle), in serving order. */
-  clips: PlayerClip[]
+  clips: PreviewClip[]
   /** Play-tests: the blind code on the set to play. */
   setCode: number | null
 }
 
 /** Exactly what one player sees: codes, scales and trials; no recipe, no repeat marks. */
-export interface PlayerView {
+export interface SessionPreview {
   sessionName: string
   format: SessionFormat
   instructions: string
@@ -260,7 +260,7 @@ export interface PlayerView {
   cautions: string[]
   attributes: AttributeSpec[]
   allowNoPreference: boolean
-  trials: PlayerTrial[]
+  trials: PreviewTrial[]
 }
 
 export interface PlannerResult {

@@ -4,7 +4,7 @@ import type {
   PanelSummary,
   Player,
   UpdatePlayerBody,
-} from '@shared/schemas/players'
+} from '@shared/schemas/panel'
 import { api } from './client'
 
 export const panelApi = {

@@ -3,7 +3,7 @@ import type {
   PlayerState,
   SaveAnswerResult,
   TrialAnswer,
-} from '@shared/schemas/player'
+} from '@shared/schemas/rating'
 import type { PlayerLanding } from '@shared/schemas/sessions'
 import { api, request } from './client'
 

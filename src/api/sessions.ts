@@ -4,7 +4,7 @@ import type {
   LabelSheet,
   PlannerQuery,
   PlannerResult,
-  PlayerView,
+  SessionPreview,
   SessionDesign,
   SessionDetail,
   SessionSummary,
@@ -22,7 +22,7 @@ export const sessionsApi = {
   open: (id: number) => api.post<{ session: SessionDetail }>(`/sessions/${id}/open`),
   close: (id: number) => api.post<{ session: SessionDetail }>(`/sessions/${id}/close`),
   preview: (id: number, player: number) =>
-    api.get<{ plan: PlayerView }>(`/sessions/${id}/preview`, { player }),
+    api.get<{ plan: SessionPreview }>(`/sessions/${id}/preview`, { player }),
   addTimePoint: (id: number, body: TimePointBody) =>
     api.post<{ session: SessionDetail }>(`/sessions/${id}/time-points`, body),
   invitations: (id: number) =>

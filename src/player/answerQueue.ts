@@ -1,4 +1,4 @@
-import type { SaveAnswerResult, TrialAnswer } from '@shared/schemas/player'
+import type { SaveAnswerResult, TrialAnswer } from '@shared/schemas/rating'
 
 // Answers wait here until the server has them. The queue lives in localStorage under the link's
 // token, so a dropped connection, a closed tab or a flat battery loses nothing; the server's

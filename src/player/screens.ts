@@ -1,4 +1,4 @@
-import type { PlayerTrialView, TrialAnswer } from '@shared/schemas/player'
+import type { PlayerTrialView, TrialAnswer } from '@shared/schemas/rating'
 
 /** Trials answered together: the clips of one matched set share a screen in attribute rating. */
 export interface TrialScreen {

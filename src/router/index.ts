@@ -1,5 +1,5 @@
 import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
-import type { Role } from '@shared/constants'
+import { ADMIN, EDITORS, STAFF, type Role } from '@shared/constants'
 import { useSessionStore } from '@/stores/session'
 
 declare module 'vue-router' {
@@ -12,8 +12,6 @@ declare module 'vue-router' {
     title?: string
   }
 }
-
-const STAFF = ['admin', 'developer', 'analyst'] as const
 
 export const routes: RouteRecordRaw[] = [
   {
@@ -62,7 +60,7 @@ export const routes: RouteRecordRaw[] = [
         name: 'clips',
         component: () => import('@/views/ClipsView.vue'),
         meta: {
-          roles: ['admin', 'developer', 'analyst'],
+          roles: STAFF,
           nav: 'Clips',
           navGroup: 'work',
           title: 'Clips',
@@ -78,7 +76,7 @@ export const routes: RouteRecordRaw[] = [
         path: 'sessions/new',
         name: 'session-new',
         component: () => import('@/views/SessionNewView.vue'),
-        meta: { roles: ['admin', 'developer'], title: 'New session' },
+        meta: { roles: EDITORS, title: 'New session' },
       },
       {
         path: 'sessions/:id(\\d+)',
@@ -96,25 +94,25 @@ export const routes: RouteRecordRaw[] = [
         path: 'panel',
         name: 'panel',
         component: () => import('@/views/PanelView.vue'),
-        meta: { roles: ['admin', 'developer'], nav: 'Panel', navGroup: 'work', title: 'Panel' },
+        meta: { roles: EDITORS, nav: 'Panel', navGroup: 'work', title: 'Panel' },
       },
       {
         path: 'admin/staff',
         name: 'staff',
         component: () => import('@/views/StaffView.vue'),
-        meta: { roles: ['admin'], nav: 'Staff accounts', navGroup: 'admin', title: 'Staff' },
+        meta: { roles: ADMIN, nav: 'Staff accounts', navGroup: 'admin', title: 'Staff' },
       },
       {
         path: 'admin/audit',
         name: 'audit',
         component: () => import('@/views/AuditView.vue'),
-        meta: { roles: ['admin'], nav: 'Audit log', navGroup: 'admin', title: 'Audit log' },
+        meta: { roles: ADMIN, nav: 'Audit log', navGroup: 'admin', title: 'Audit log' },
       },
       {
         path: 'admin/mail',
         name: 'mail',
         component: () => import('@/views/MailView.vue'),
-        meta: { roles: ['admin'], nav: 'Mail', navGroup: 'admin', title: 'Mail' },
+        meta: { roles: ADMIN, nav: 'Mail', navGroup: 'admin', title: 'Mail' },
       },
       {
         path: 'no-access',

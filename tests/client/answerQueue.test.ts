@@ -1,5 +1,5 @@
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
-import type { SaveAnswerResult, TrialAnswer } from '@shared/schemas/player'
+import type { SaveAnswerResult, TrialAnswer } from '@shared/schemas/rating'
 import { AnswerQueue, queueKey, RETRY_DELAYS_MS, type QueueState } from '@/player/answerQueue'
 import { ApiError } from '@/api/client'
 

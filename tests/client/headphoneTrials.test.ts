@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { HEADPHONE_PASS as CONTRACT } from '@shared/schemas/player'
+import { HEADPHONE_PASS as CONTRACT } from '@shared/schemas/rating'
 import {
   HEADPHONE_PASS,
   headphonePassed,

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import type { PlayerTrialView, TrialAnswer } from '@shared/schemas/player'
+import type { PlayerTrialView, TrialAnswer } from '@shared/schemas/rating'
 import { firstOpenScreen, groupScreens, isComplete } from '@/player/screens'
 
 const trial = (index: number, screen: number): PlayerTrialView => ({

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { join } from 'node:path'
-import type { PlayerPlanView, PlayerState } from '../../shared/schemas/player'
+import type { PlayerPlanView, PlayerState } from '../../shared/schemas/rating'
 import { launchBrowser, SHOTS, startProduct } from './browser'
 import { invitedStudy } from './playerFixture'
 

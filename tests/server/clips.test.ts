@@ -13,8 +13,8 @@ import {
   samplePeakDbfs,
   synth,
 } from '../../server/audio/index.ts'
-import { seedDemoClips } from '../../server/demoClips'
-import { mediaFolders } from '../../server/services/clipStorage'
+import { seedDemoClips } from '../../seeds/demo/clips'
+import { mediaFolders } from '../../server/clips/storage'
 import { systemClock } from '../../server/clock'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
 

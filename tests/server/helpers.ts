@@ -9,7 +9,7 @@ import { prepareDatabase } from '../../server/db/prepare'
 import type { Mailbox } from '../../server/mail/fakeSmtp'
 import type { Mailer, OutgoingMail } from '../../server/mail/transport'
 import type { StaffRole } from '../../shared/constants'
-import { DEMO_PASSWORD } from '../../server/demo'
+import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
 
 export const DEMO = {
   admin: 'admin@ringdown.test',

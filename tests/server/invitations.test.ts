@@ -4,7 +4,7 @@ import jwt from 'jsonwebtoken'
 import { fixedClock } from '../../server/clock'
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fakeSmtp'
 import { smtpMailer } from '../../server/mail/transport'
-import { sendDueReminders } from '../../server/services/reminders'
+import { sendDueReminders } from '../../server/invitations/reminders'
 import { buildApp, lastMailTo, signInAs, type Agent, type TestApp } from './helpers'
 import { addAnswers, addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
 

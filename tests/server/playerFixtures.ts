@@ -2,7 +2,7 @@ import { mkdirSync, writeFileSync } from 'node:fs'
 import { randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
 import { encodeWav, synth } from '../../server/audio/index.ts'
-import { mediaFolders } from '../../server/services/clipStorage'
+import { mediaFolders } from '../../server/clips/storage'
 import { signInvitation } from '../../server/auth/invitationTokens'
 import type { TestApp } from './helpers'
 

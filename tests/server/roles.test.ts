@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { ROLES, STAFF_ROLES, type StaffRole } from '../../shared/constants'
 import type { MountedTable } from '../../server/app'
-import type { RouteDef } from '../../server/routes/table'
+import type { RouteDef } from '../../server/http/routeTable'
 import { buildApp, memoryMailbox, signInAs, type Agent, type TestApp } from './helpers'
 
 // The app is built at collection time so the table of cases is known before tests are declared.

@@ -6,7 +6,7 @@ import {
   signTestSampleSize,
   triangleSampleSize,
 } from '../../server/analysis/index.ts'
-import { seedDemoSessions } from '../../server/demoSessions'
+import { seedDemoSessions } from '../../seeds/demo/sessions'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
 import {
   addAnswers,

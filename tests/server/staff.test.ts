@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { fixedClock } from '../../server/clock'
-import { updateStaff } from '../../server/services/staff'
+import { updateStaff } from '../../server/staff/service'
 import {
   buildApp,
   createStaff,

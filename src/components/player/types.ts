@@ -1,4 +1,4 @@
-import type { TrialAnswer } from '@shared/schemas/player'
+import type { TrialAnswer } from '@shared/schemas/rating'
 
 /** Colours the waveform draws with, from the palette of the theme in use. */
 export interface WaveColours {

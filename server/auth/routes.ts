@@ -1,0 +1,101 @@
+import { rateLimit } from 'express-rate-limit'
+import type { AppContext } from '../context'
+import type { RouteDef } from '../http/routeTable'
+import { parse } from '../http/validate'
+import { actorOf, clearSessionCookie, setSessionCookie } from '../http/authenticate'
+import { inspectLink, requestPasswordReset, setPasswordWithLink, signIn, toMe } from './accounts'
+import { recordAudit } from '../audit/service'
+import { forgotBody, loginBody, resetBody, tokenQuery } from '../../shared/schemas/auth'
+import { AppError } from '../errors'
+
+export function authRoutes(ctx: AppContext): RouteDef[] {
+  // Limits come from the config so the load benchmarks can lift them. Only failed sign-ins
+  // count, so a whole office behind one address is not locked out by its own daily sign-ins.
+  const limit = (skipSuccessfulRequests: boolean) =>
+    rateLimit({
+      windowMs: ctx.config.loginRateLimit.windowMs,
+      limit: ctx.config.loginRateLimit.max,
+      skipSuccessfulRequests,
+      standardHeaders: 'draft-8',
+      legacyHeaders: false,
+      handler: (_req, _res, next) =>
+        next(new AppError('rate_limited', 'Too many attempts. Wait a few minutes and try again.')),
+    })
+  const signInLimiter = limit(true)
+  const linkLimiter = limit(false)
+  return [
+    {
+      method: 'post',
+      path: '/login',
+      roles: 'public',
+      before: [signInLimiter],
+      handler: async (req, res) => {
+        const body = parse(loginBody, req.body)
+        const user = await signIn(ctx, body.email, body.password, req.ip ?? null)
+        setSessionCookie(ctx, res, user)
+        res.json({ user: toMe(user) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/logout',
+      roles: 'public',
+      handler: async (req, res) => {
+        if (req.user)
+          await recordAudit(ctx.knex, ctx.clock.now(), actorOf(req), {
+            action: 'auth.sign_out',
+            targetType: 'user',
+            targetId: req.user.id,
+          })
+        clearSessionCookie(ctx, res)
+        res.status(204).end()
+      },
+    },
+    {
+      method: 'get',
+      path: '/me',
+      // Open to all: "nobody is signed in" is an answer the sign-in page needs, not an error.
+      roles: 'public',
+      handler: (req, res) => {
+        res.json({
+          user: req.user ? toMe(req.user) : null,
+          features: { mailbox: Boolean(ctx.mailbox) && ctx.config.env !== 'production' },
+        })
+      },
+    },
+    {
+      method: 'post',
+      path: '/forgot',
+      roles: 'public',
+      before: [linkLimiter],
+      handler: async (req, res) => {
+        const body = parse(forgotBody, req.body)
+        await requestPasswordReset(ctx, body.email, actorOf(req))
+        res.json({
+          message: 'If that address belongs to an active account, a reset link is on its way.',
+        })
+      },
+    },
+    {
+      method: 'get',
+      path: '/link',
+      roles: 'public',
+      handler: async (req, res) => {
+        const { token } = parse(tokenQuery, req.query)
+        res.json(await inspectLink(ctx, token))
+      },
+    },
+    {
+      method: 'post',
+      path: '/set-password',
+      roles: 'public',
+      before: [linkLimiter],
+      handler: async (req, res) => {
+        const body = parse(resetBody, req.body)
+        const user = await setPasswordWithLink(ctx, body.token, body.password, req.ip ?? null)
+        setSessionCookie(ctx, res, user)
+        res.json({ user: toMe(user) })
+      },
+    },
+  ]
+}

@@ -1,0 +1,164 @@
+import { readFile } from 'node:fs/promises'
+import type { Response } from 'express'
+import type { AppContext } from '../context'
+import type { RouteDef } from '../http/routeTable'
+import { parse } from '../http/validate'
+import { actorOf } from '../http/authenticate'
+import { discardTempFiles, filesOf, tempUpload } from './upload'
+import { badRequest, notFound } from '../errors'
+import { clipFiles, deleteClip, getClip, listClips, updateClip, uploadClip } from './service'
+import { importClipManifest } from './manifestImport'
+import { matchedSets } from './matchedSets'
+import { mediaFolders } from './storage'
+import {
+  CLIP_LIMITS,
+  clipUploadBody,
+  listClipsQuery,
+  updateClipBody,
+} from '../../shared/schemas/clips'
+import { idParam } from '../../shared/schemas/common'
+import { EDITORS, LIMITS, STAFF } from '../../shared/constants'
+
+/** Sends a media file with Range support; a file gone missing is a 404, not a 500. */
+function sendMedia(
+  res: Response,
+  path: string,
+  options: { download?: string; type?: string },
+): Promise<void> {
+  return new Promise((resolve, reject) => {
+    const done = (err?: Error & { code?: string; status?: number }) => {
+      if (!err) return resolve()
+      if (res.headersSent) return resolve()
+      reject(err.code === 'ENOENT' || err.status === 404 ? notFound('The audio file') : err)
+    }
+    // No Last-Modified: the time a file was written says nothing a listener needs.
+    const common = {
+      lastModified: false,
+      headers: {
+        'Cache-Control': 'private, no-cache',
+        ...(options.type ? { 'Content-Type': options.type } : {}),
+      },
+    }
+    if (options.download) res.download(path, options.download, common, done)
+    else res.sendFile(path, common, done)
+  })
+}
+
+export function clipRoutes(ctx: AppContext): RouteDef[] {
+  const dir = mediaFolders(ctx.config.mediaDir).incoming
+  const maxMb = ctx.config.uploadMaxMb
+  const single = tempUpload({ dir, maxMb, fields: [{ name: 'file', maxCount: 1 }] })
+  const batch = tempUpload({
+    dir,
+    maxMb,
+    fields: [
+      { name: 'manifest', maxCount: 1 },
+      { name: 'files', maxCount: CLIP_LIMITS.batchMaxFiles },
+    ],
+  })
+
+  return [
+    {
+      method: 'get',
+      path: '/',
+      roles: STAFF,
+      handler: async (req, res) => {
+        const query = parse(listClipsQuery, req.query)
+        res.json({ clips: await listClips(ctx.knex, query) })
+      },
+    },
+    {
+      method: 'get',
+      path: '/matched-sets',
+      roles: STAFF,
+      handler: async (_req, res) => {
+        res.json({ sections: await matchedSets(ctx.knex) })
+      },
+    },
+    {
+      method: 'post',
+      path: '/',
+      roles: EDITORS,
+      before: [single],
+      handler: async (req, res) => {
+        try {
+          const [file] = filesOf(req, 'file')
+          if (!file) throw badRequest('Attach the recording in the field "file"')
+          const body = parse(clipUploadBody, req.body)
+          res.status(201).json({ clip: await uploadClip(ctx, file, body, actorOf(req)) })
+        } finally {
+          discardTempFiles(res)
+        }
+      },
+    },
+    {
+      method: 'post',
+      path: '/batch',
+      roles: EDITORS,
+      before: [batch],
+      handler: async (req, res) => {
+        try {
+          const [manifest] = filesOf(req, 'manifest')
+          if (!manifest) throw badRequest('Attach the manifest CSV in the field "manifest"')
+          if (manifest.size > LIMITS.csvMaxBytes)
+            throw badRequest(`The manifest is larger than ${LIMITS.csvMaxBytes / 1_000_000} MB`)
+          const text = await readFile(manifest.path, 'utf8')
+          if (text.includes('\u0000')) throw badRequest('The manifest is not a text CSV file')
+          const files = filesOf(req, 'files')
+          res.status(201).json(await importClipManifest(ctx, text, files, actorOf(req)))
+        } finally {
+          discardTempFiles(res)
+        }
+      },
+    },
+    {
+      method: 'get',
+      path: '/:id',
+      roles: STAFF,
+      handler: async (req, res) => {
+        const { id } = parse(idParam, req.params)
+        res.json({ clip: await getClip(ctx.knex, id) })
+      },
+    },
+    {
+      method: 'patch',
+      path: '/:id',
+      roles: EDITORS,
+      handler: async (req, res) => {
+        const { id } = parse(idParam, req.params)
+        const body = parse(updateClipBody, req.body)
+        res.json({ clip: await updateClip(ctx, id, body, actorOf(req)) })
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      roles: EDITORS,
+      handler: async (req, res) => {
+        const { id } = parse(idParam, req.params)
+        res.json(await deleteClip(ctx, id, actorOf(req)))
+      },
+    },
+    {
+      // The blind rendition; players will reach renditions through session codes, not here.
+      method: 'get',
+      path: '/:id/audio',
+      roles: STAFF,
+      handler: async (req, res) => {
+        const { id } = parse(idParam, req.params)
+        const { rendition } = await clipFiles(ctx, id)
+        await sendMedia(res, rendition, { type: 'audio/wav' })
+      },
+    },
+    {
+      method: 'get',
+      path: '/:id/original',
+      roles: EDITORS,
+      handler: async (req, res) => {
+        const { id } = parse(idParam, req.params)
+        const { original, originalName } = await clipFiles(ctx, id)
+        await sendMedia(res, original, { download: originalName })
+      },
+    },
+  ]
+}

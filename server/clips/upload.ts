@@ -1,0 +1,101 @@
+import { randomBytes } from 'node:crypto'
+import { mkdirSync, rmSync } from 'node:fs'
+import { join } from 'node:path'
+import type { NextFunction, Request, RequestHandler, Response } from 'express'
+import multer, { MulterError } from 'multer'
+import { AppError, badRequest } from '../errors'
+import type { UploadedFile } from './storage'
+
+export interface TempUploadOptions {
+  /** Folder for files still being checked; it must sit on the media folder's disk. */
+  dir: string
+  maxMb: number
+  fields: { name: string; maxCount: number }[]
+}
+
+function tempFilesOf(res: Response): string[] {
+  return ((res.locals.tempFiles as string[] | undefined) ??= [])
+}
+
+/** Deletes whatever this request wrote to the temp folder and has not moved away. */
+export function discardTempFiles(res: Response): void {
+  for (const path of tempFilesOf(res)) rmSync(path, { force: true })
+}
+
+/**
+ * Multipart upload to a temp folder under random names. Every file written is remembered, and
+ * deleted when the handler is done, when the upload fails half-way, and again when the response
+ * closes: a refused or interrupted upload never leaves a file behind.
+ */
+export function tempUpload(options: TempUploadOptions): RequestHandler {
+  const storage = multer.diskStorage({
+    destination: (_req, _file, cb) => {
+      mkdirSync(options.dir, { recursive: true })
+      cb(null, options.dir)
+    },
+    filename: (req, _file, cb) => {
+      const name = `${randomBytes(16).toString('hex')}.part`
+      tempFilesOf(req.res!).push(join(options.dir, name))
+      cb(null, name)
+    },
+  })
+  const upload = multer({
+    storage,
+    // The full name is kept so that a name with a path in it can be refused, not quietly cut.
+    preservePath: true,
+    defParamCharset: 'utf8',
+    limits: {
+      fileSize: options.maxMb * 1024 * 1024,
+      files: options.fields.reduce((n, f) => n + f.maxCount, 0),
+      fields: 40,
+      fieldSize: 100_000,
+    },
+  }).fields(options.fields)
+
+  return (req: Request, res: Response, next: NextFunction) => {
+    res.once('close', () => discardTempFiles(res))
+    upload(req, res, (err?: unknown) => {
+      if (!err) return next()
+      discardTempFiles(res)
+      next(uploadError(err, options))
+    })
+  }
+}
+
+function uploadError(err: unknown, options: TempUploadOptions): unknown {
+  // The multipart parser's own refusals: the request itself cannot be read.
+  if (err instanceof Error && /^Malformed part header/.test(err.message))
+    return badRequest(
+      'The upload could not be read: a part header is malformed (a file name with control characters, for example)',
+    )
+  if (err instanceof Error && /^(Unexpected end of form|Malformed)/.test(err.message))
+    return badRequest(`The upload could not be read: ${err.message.toLowerCase()}`)
+  if (!(err instanceof MulterError)) return err
+  switch (err.code) {
+    case 'LIMIT_FILE_SIZE':
+      return new AppError(
+        'payload_too_large',
+        `A file is larger than the upload limit of ${options.maxMb} MB; nothing was stored`,
+      )
+    case 'LIMIT_UNEXPECTED_FILE':
+    case 'LIMIT_FILE_COUNT':
+      return badRequest(
+        `Unexpected file in "${err.field ?? ''}": send ${options.fields
+          .map((f) => `up to ${f.maxCount} in "${f.name}"`)
+          .join(' and ')}`,
+      )
+    default:
+      return badRequest(`Upload refused: ${err.message}`)
+  }
+}
+
+/** The uploaded files of one field, as plain data for a service. */
+export function filesOf(req: Request, field: string): UploadedFile[] {
+  const files = (req.files as Record<string, Express.Multer.File[]> | undefined)?.[field] ?? []
+  return files.map((f) => ({
+    path: f.path,
+    name: f.originalname,
+    mimeType: f.mimetype,
+    size: f.size,
+  }))
+}

@@ -1,0 +1,175 @@
+import type { Knex } from 'knex'
+import { buildPlayerPlan, DesignError, sessionCodes } from '../design/index.ts'
+import { conflict, forbidden } from '../errors'
+import type { Role } from '../../shared/constants'
+import type { AttributeSpec } from '../../shared/schemas/sessions'
+import type { RecipeRef } from '../../shared/schemas/findings'
+import {
+  emptyResolved,
+  resolvePlayerAnswers,
+  type ResolvedAnswers,
+  type StoredAnswer,
+} from './answersToRatings'
+import { sessionInput } from '../sessions/plans'
+import { designOf, loadSession, type SessionRow } from '../sessions/rows'
+
+/** Who is asking: services take this rather than the request. */
+export interface Viewer {
+  userId: number | null
+  role: Role
+}
+
+/** Developers read the findings of the sessions they made; analysts and admins read all. */
+export function assertMayRead(viewer: Viewer, session: SessionRow): void {
+  if (viewer.role === 'admin' || viewer.role === 'analyst') return
+  if (viewer.role === 'developer' && session.created_by === viewer.userId) return
+  throw forbidden('Only the developer who made this session, analysts and admins see its findings')
+}
+
+export interface SessionPlayer {
+  playerId: number
+  code: string
+  level: string
+  instruments: string[]
+  started: boolean
+  done: boolean
+  /** Stored answers, readable or not. */
+  answered: number
+  exclusionReason: string | null
+}
+
+/** Everything one session's findings are computed from, with answers already in recipes. */
+export interface FindingsData {
+  session: SessionRow
+  recipes: RecipeRef[]
+  attributes: AttributeSpec[]
+  players: SessionPlayer[]
+  resolved: ResolvedAnswers
+  answers: number
+}
+
+interface InvitationJoin {
+  player_id: number
+  player_index: number
+  started_at: string | null
+  completed_at: string | null
+  code: string
+  level: string
+  instruments: string
+  reason: string | null
+  invitation_id: number
+}
+
+/** Names as staff know them; a version number only where two versions share a name. */
+export async function recipeRefs(db: Knex, ids: number[]): Promise<RecipeRef[]> {
+  const rows: { id: number; name: string; version: number }[] = await db('recipes')
+    .whereIn('id', ids)
+    .select('id', 'name', 'version')
+  const byId = new Map(rows.map((r) => [r.id, r]))
+  return ids.map((id) => {
+    const r = byId.get(id)
+    if (!r) return { id, name: `Recipe ${id}` }
+    const shared = rows.filter((o) => o.name === r.name).length > 1
+    return { id, name: shared ? `${r.name} v${r.version}` : r.name }
+  })
+}
+
+export async function loadFindingsData(db: Knex, sessionId: number): Promise<FindingsData> {
+  const session = await loadSession(db, sessionId)
+  const design = designOf(session)
+  // Revoked invitations are left out: the organisers withdrew them, answers and all.
+  const invitations: InvitationJoin[] = await db('invitations as i')
+    .join('players as p', 'p.id', 'i.player_id')
+    .leftJoin('exclusions as x', function () {
+      this.on('x.session_id', '=', 'i.session_id').andOn('x.player_id', '=', 'i.player_id')
+    })
+    .where('i.session_id', sessionId)
+    .whereNull('i.revoked_at')
+    .orderBy('i.player_index')
+    .select(
+      'i.id as invitation_id',
+      'i.player_id',
+      'i.player_index',
+      'i.started_at',
+      'i.completed_at',
+      'p.code',
+      'p.level',
+      'p.instruments',
+      'x.reason',
+    )
+  const stored: {
+    invitation_id: number
+    trial_index: number
+    payload: string
+    answered_at: string
+  }[] =
+    invitations.length === 0
+      ? []
+      : await db('answers')
+          .whereIn(
+            'invitation_id',
+            invitations.map((i) => i.invitation_id),
+          )
+          .orderBy(['invitation_id', 'trial_index'])
+          .select('invitation_id', 'trial_index', 'payload', 'answered_at')
+  const byInvitation = new Map<number, StoredAnswer[]>()
+  for (const a of stored) {
+    const list = byInvitation.get(a.invitation_id) ?? []
+    list.push({ trialIndex: a.trial_index, payload: a.payload, answeredAt: a.answered_at })
+    byInvitation.set(a.invitation_id, list)
+  }
+
+  const resolved = emptyResolved()
+  const keys = design.attributes.map((a) => a.key)
+  if (stored.length > 0) {
+    const input = await sessionInput(db, session)
+    try {
+      const codes = sessionCodes(input)
+      for (const inv of invitations) {
+        const answers = byInvitation.get(inv.invitation_id)
+        if (!answers) continue
+        const plan = buildPlayerPlan(input, inv.player_index, codes)
+        resolvePlayerAnswers(resolved, inv.code, plan.trials, answers, keys)
+      }
+    } catch (err) {
+      if (!(err instanceof DesignError)) throw err
+      throw conflict(
+        "This session's design can no longer be rebuilt, so its answers cannot be read: " +
+          err.message,
+      )
+    }
+  }
+
+  return {
+    session,
+    recipes: await recipeRefs(db, design.recipeIds),
+    attributes: design.attributes,
+    players: invitations.map((i) => ({
+      playerId: i.player_id,
+      code: i.code,
+      level: i.level,
+      instruments: JSON.parse(i.instruments) as string[],
+      started: Boolean(i.started_at) || byInvitation.has(i.invitation_id),
+      done: Boolean(i.completed_at),
+      answered: byInvitation.get(i.invitation_id)?.length ?? 0,
+      exclusionReason: i.reason,
+    })),
+    resolved,
+    answers: stored.length,
+  }
+}
+
+/** The clip measures objective-vs-perceived compares with, as stored at upload. */
+export async function clipMeasures(db: Knex, clipIds: number[]) {
+  if (clipIds.length === 0) return []
+  return (await db('clips')
+    .whereIn('id', clipIds)
+    .select('id', 'recipe_id', 'loudness_lufs', 'centroid_hz', 't60_s', 'attack_s')) as {
+    id: number
+    recipe_id: number
+    loudness_lufs: number | null
+    centroid_hz: number | null
+    t60_s: number | null
+    attack_s: number | null
+  }[]
+}

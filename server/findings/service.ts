@@ -1,0 +1,121 @@
+import type { Knex } from 'knex'
+import { INSTRUMENTS, PLAYER_LEVELS } from '../../shared/constants'
+import type { SessionFindings } from '../../shared/schemas/findings'
+import { agingFindings, loadTimePoints } from './aging'
+import {
+  answersOf,
+  inSubgroup,
+  lineScaleFindings,
+  objectiveFindings,
+  pairPreferences,
+  reliabilityFindings,
+  summaryOf,
+  triangleFindings,
+  type Subgroup,
+} from './compute'
+import {
+  assertMayRead,
+  clipMeasures,
+  loadFindingsData,
+  type FindingsData,
+  type Viewer,
+} from './data'
+import { designOf, loadSession } from '../sessions/rows'
+
+export type { Viewer }
+
+export interface ComputedFindings {
+  findings: SessionFindings
+  data: FindingsData
+}
+
+/** Loads a session the viewer may read, or throws 404/403 before any work is done. */
+export async function readableSession(db: Knex, sessionId: number, viewer: Viewer) {
+  const session = await loadSession(db, sessionId)
+  assertMayRead(viewer, session)
+  return session
+}
+
+export async function getFindings(
+  db: Knex,
+  sessionId: number,
+  viewer: Viewer,
+  group: Subgroup = {},
+): Promise<SessionFindings> {
+  await readableSession(db, sessionId, viewer)
+  return (await computeSessionFindings(db, sessionId, group)).findings
+}
+
+/** The whole findings page for one session and subgroup, computed afresh from the answers. */
+export async function computeSessionFindings(
+  db: Knex,
+  sessionId: number,
+  group: Subgroup,
+): Promise<ComputedFindings> {
+  const data = await loadFindingsData(db, sessionId)
+  const { session, recipes, attributes } = data
+  const players = data.players.filter((p) => inSubgroup(p, group))
+  const all = answersOf(data.resolved, new Set(players.map((p) => p.code)))
+  const kept = answersOf(
+    all,
+    new Set(players.filter((p) => p.exclusionReason === null).map((p) => p.code)),
+  )
+  const excluded = players.filter((p) => p.exclusionReason !== null).map((p) => p.code)
+  const format = session.format
+  const lineScale = format === 'rating' || format === 'playtest'
+  const answering = {
+    readable: new Set(all.rows.map((r) => r.player)).size,
+    kept: new Set(kept.rows.map((r) => r.player)).size,
+  }
+  const answersInGroup = players.reduce((sum, p) => sum + p.answered, 0)
+
+  const clips = designOf(session).clipSets.flatMap((s) => s.clipIds)
+  const timePoints = await loadTimePoints(db, session, group)
+  const findings: SessionFindings = {
+    session: {
+      id: session.id,
+      name: session.name,
+      format,
+      status: session.status,
+      timePointLabel: session.time_point_label,
+    },
+    summary: summaryOf(players, answersInGroup, data.resolved.unreadable),
+    filters: {
+      instrument: group.instrument ?? null,
+      level: group.level ?? null,
+      available: {
+        instruments: INSTRUMENTS.filter((i) => data.players.some((p) => p.instruments.includes(i))),
+        levels: PLAYER_LEVELS.filter((l) => data.players.some((p) => p.level === l)),
+      },
+    },
+    reason: topReason(answersInGroup, answering, data.answers),
+    recipes,
+    attributes: lineScale ? lineScaleFindings(kept.ratings, recipes, attributes, excluded) : [],
+    preferences: format === 'pair' ? pairPreferences(kept, recipes, attributes) : null,
+    triangle: format === 'triangle' ? triangleFindings(kept) : null,
+    reliability: reliabilityFindings(all.ratings, players),
+    objective:
+      format === 'rating'
+        ? objectiveFindings(kept.ratings, await clipMeasures(db, clips), attributes)
+        : [],
+    aging: timePoints ? agingFindings(timePoints, recipes, attributes) : null,
+  }
+  return { findings, data }
+}
+
+/** One line for the page head when there is nothing, or too little, to compare. */
+function topReason(
+  answersInGroup: number,
+  answering: { readable: number; kept: number },
+  answersInSession: number,
+) {
+  if (answersInSession === 0) return 'not enough data: no answers yet'
+  if (answersInGroup === 0) return 'not enough data: nobody in this subgroup has answered'
+  if (answering.readable === 0) return 'not enough data: no stored answer could be read'
+  if (answering.kept === 0) return 'not enough data: every player who answered is excluded'
+  if (answering.kept === 1)
+    return answering.readable === 1
+      ? 'not enough data: only one player has answered'
+      : 'not enough data: only one player is left after exclusions'
+  return null
+}

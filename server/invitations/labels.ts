@@ -1,0 +1,58 @@
+import QRCode from 'qrcode'
+import type { AppContext } from '../context'
+import { conflict } from '../errors'
+import { loadSession } from '../sessions/rows'
+import { planFor, sessionInput } from '../sessions/plans'
+import { invitationUrl, type InvitationDbRow } from './rows'
+import { STRING_FITTING_CAUTION } from '../../shared/cautions'
+import type { LabelSheet } from '../../shared/schemas/sessions'
+
+/** A QR code as SVG markup; medium error correction survives a crease in a paper label. */
+export function qrSvg(text: string): Promise<string> {
+  return QRCode.toString(text, { type: 'svg', errorCorrectionLevel: 'M', margin: 2 })
+}
+
+/**
+ * The play-test's printable sheet: for each invited player the coded sets in the order they
+ * are to be played, each with a QR code that opens the rating form for that set, and the
+ * packing list that tells staff which recipe goes into which coded envelope.
+ */
+export async function labelSheet(ctx: AppContext, sessionId: number): Promise<LabelSheet> {
+  const session = await loadSession(ctx.knex, sessionId)
+  if (session.format !== 'playtest')
+    throw conflict('Labels are printed for play-test sessions only')
+  const input = await sessionInput(ctx.knex, session)
+  const recipes: { id: number; name: string; version: number }[] = await ctx
+    .knex('recipes')
+    .whereIn('id', input.recipes as number[])
+    .select('id', 'name', 'version')
+  const recipeName = new Map(
+    recipes.map((r) => [r.id, r.version > 1 ? `${r.name} v${r.version}` : r.name]),
+  )
+  const invitations: (InvitationDbRow & { code: string; name: string | null })[] = await ctx
+    .knex('invitations as i')
+    .join('players as p', 'p.id', 'i.player_id')
+    .where('i.session_id', sessionId)
+    .whereNull('i.revoked_at')
+    .orderBy('i.player_index')
+    .select('i.*', 'p.code', 'p.name')
+  const players = []
+  for (const inv of invitations) {
+    const plan = planFor(input, inv.player_index)
+    const link = invitationUrl(ctx, inv, session)
+    const sets = []
+    const packing = []
+    for (const [i, t] of plan.trials.entries()) {
+      if (t.kind !== 'playtest') continue
+      const url = `${link}?set=${t.code}`
+      sets.push({ code: t.code, position: i + 1, url, qrSvg: await qrSvg(url) })
+      packing.push({
+        code: t.code,
+        position: i + 1,
+        recipeName: recipeName.get(Number(t.recipeId)) ?? `Recipe ${t.recipeId}`,
+      })
+    }
+    players.push({ playerCode: inv.code, playerName: inv.name, sets, packing })
+  }
+  return { players, caution: STRING_FITTING_CAUTION }
+}

@@ -1,0 +1,136 @@
+import type { AppContext } from '../context'
+import { validationFailed } from '../errors'
+import {
+  assertConsent,
+  assertStillOpen,
+  openForAnswers,
+  openForReading,
+  type PlayerAccess,
+} from './access'
+import { plannedTrials } from './plan'
+import { givenAnswer } from './answerPayload'
+import { invitationStatus } from '../invitations/rows'
+import { cautionsFor } from '../sessions/plans'
+import { firstNameOf } from '../invitations/mail'
+import { HEADPHONE_PASS, type PlayerState } from '../../shared/schemas/rating'
+
+/** Passing needs the full check and at least the pass mark's share of it right. */
+export function headphonePassed(correct: number, trials: number): boolean {
+  return (
+    trials >= HEADPHONE_PASS.trials &&
+    correct * HEADPHONE_PASS.trials >= HEADPHONE_PASS.correct * trials
+  )
+}
+
+async function stateOf(
+  ctx: AppContext,
+  { inv, session, canAnswer }: PlayerAccess,
+): Promise<PlayerState> {
+  const trials = await plannedTrials(ctx.knex, session, inv)
+  const rows: { trial_index: number; payload: string }[] = await ctx
+    .knex('answers')
+    .where({ invitation_id: inv.id })
+    .orderBy('trial_index')
+    .select('trial_index', 'payload')
+  const answers = rows.flatMap((r) => {
+    const answer = givenAnswer(r.payload, trials[r.trial_index] ?? null)
+    return answer ? [{ trialIndex: r.trial_index, answer }] : []
+  })
+  const player: { name: string | null } | undefined = await ctx
+    .knex('players')
+    .where({ id: inv.player_id })
+    .first('name')
+  const headphone =
+    inv.headphone_trials === null || inv.headphone_correct === null
+      ? null
+      : {
+          correct: inv.headphone_correct,
+          trials: inv.headphone_trials,
+          passed: headphonePassed(inv.headphone_correct, inv.headphone_trials),
+          attempts: inv.headphone_attempts,
+        }
+  return {
+    landing: {
+      sessionName: session.name,
+      format: session.format,
+      instructions: session.instructions,
+      deadline: session.deadline,
+      status: invitationStatus(inv, session, ctx.clock.now()),
+      cautions: cautionsFor(session.format),
+      trialCount: trials.length,
+      answered: rows.length,
+      firstName: firstNameOf(player?.name ?? null),
+    },
+    consentAt: inv.consent_at,
+    headphone,
+    levelSetAt: inv.level_set_at,
+    answers,
+    canAnswer,
+  }
+}
+
+/** Where the player stands; the first visit of a link that still works counts as opening it. */
+export async function playerState(ctx: AppContext, token: string): Promise<PlayerState> {
+  const access = await openForReading(ctx, token)
+  if (access.canAnswer && !access.inv.opened_at) {
+    const now = ctx.clock.now().toISOString()
+    await ctx
+      .knex('invitations')
+      .where({ id: access.inv.id })
+      .whereNull('opened_at')
+      .update({ opened_at: now })
+    access.inv.opened_at = now
+  }
+  return stateOf(ctx, access)
+}
+
+/** One step of the way in, written only while the link may still change something. */
+async function step(
+  ctx: AppContext,
+  token: string,
+  change: (access: PlayerAccess, now: string) => Record<string, unknown>,
+): Promise<PlayerState> {
+  const access = await openForAnswers(ctx, token)
+  const now = ctx.clock.now()
+  await ctx.knex.transaction(async (trx) => {
+    await assertStillOpen(trx, access, now)
+    await trx('invitations').where({ id: access.inv.id }).update(change(access, now.toISOString()))
+  })
+  return stateOf(ctx, {
+    ...access,
+    inv: await ctx.knex('invitations').where({ id: access.inv.id }).first(),
+  })
+}
+
+/** The first consent stands: giving it again does not move its time. */
+export const giveConsent = (ctx: AppContext, token: string) =>
+  step(ctx, token, ({ inv }, now) => ({
+    consent_at: inv.consent_at ?? now,
+    opened_at: inv.opened_at ?? now,
+  }))
+
+/** The latest check counts and every attempt is counted, so a retry cannot hide a failure. */
+export function recordHeadphoneCheck(
+  ctx: AppContext,
+  token: string,
+  check: { correct: number; trials: number },
+): Promise<PlayerState> {
+  if (check.correct > check.trials)
+    throw validationFailed('More correct answers than trials', {
+      fields: { correct: [`At most ${check.trials}`] },
+    })
+  return step(ctx, token, ({ inv }) => {
+    assertConsent(inv)
+    return {
+      headphone_correct: check.correct,
+      headphone_trials: check.trials,
+      headphone_attempts: inv.headphone_attempts + 1,
+    }
+  })
+}
+
+export const confirmLevel = (ctx: AppContext, token: string) =>
+  step(ctx, token, ({ inv }, now) => {
+    assertConsent(inv)
+    return { level_set_at: now }
+  })

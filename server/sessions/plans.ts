@@ -1,0 +1,43 @@
+import {
+  buildPlayerPlan,
+  DesignError,
+  sessionCodes,
+  type SessionDesignInput,
+} from '../design/index.ts'
+import { conflict } from '../errors'
+import { LISTENING_CAUTION, STRING_FITTING_CAUTION } from '../../shared/cautions'
+import type { Knex } from 'knex'
+import { clipRecipes, designInput, designOf, type SessionRow } from './rows'
+import type { SessionFormat } from '../../shared/schemas/sessions'
+
+// A session's plans as the design rebuilds them: shared by the player's pages, the staff
+// preview, invitations, labels and findings.
+
+export function cautionsFor(format: SessionFormat): string[] {
+  return format === 'playtest' ? [STRING_FITTING_CAUTION] : [LISTENING_CAUTION]
+}
+
+/** A session's design ready to plan from, with clips paired to recipes from the database. */
+export async function sessionInput(db: Knex, s: SessionRow) {
+  const design = designOf(s)
+  return designInput(design, await clipRecipes(db, design.clipSets))
+}
+
+/**
+ * A stored design can stop being playable when a clip it uses is deleted; that is a conflict
+ * to show the designer, not a server fault.
+ */
+export function planFor(input: SessionDesignInput, playerIndex: number) {
+  try {
+    return buildPlayerPlan(input, playerIndex, sessionCodes(input))
+  } catch (err) {
+    if (err instanceof DesignError)
+      throw conflict(`This session's design can no longer be played: ${err.message}`)
+    throw err
+  }
+}
+
+/** Trials per player: the same for every player of a session. */
+export async function trialCountOf(db: Knex, s: SessionRow): Promise<number> {
+  return planFor(await sessionInput(db, s), 0).trials.length
+}

@@ -1,0 +1,50 @@
+import type { Knex } from 'knex'
+import type { PlannedTrial } from '../design/index.ts'
+import { cautionsFor, planFor, sessionInput } from './plans'
+import { designOf, type SessionRow } from './rows'
+import type { PreviewClip, PreviewTrial, SessionPreview } from '../../shared/schemas/sessions'
+
+// The staff preview: what player N of a session will be shown, trial by trial, by blind code.
+
+/**
+ * One player's view of the session: codes and scales in serving order. Repeat marks, the odd
+ * sample of a triangle and every recipe and clip id stay behind; `audioUrl` decides what
+ * address a clip is served under (the staff preview uses the staff clip route).
+ */
+export async function sessionPreview(
+  db: Knex,
+  s: SessionRow,
+  playerIndex: number,
+  audioUrl: (clipId: number, code: number) => string,
+): Promise<SessionPreview> {
+  const input = await sessionInput(db, s)
+  const plan = planFor(input, playerIndex)
+  const clip = (c: { clipId: string | number; code: number }): PreviewClip => ({
+    code: c.code,
+    audioUrl: audioUrl(Number(c.clipId), c.code),
+  })
+  const trialOf = (t: PlannedTrial, index: number): PreviewTrial => {
+    switch (t.kind) {
+      case 'rating':
+        return { index, kind: t.kind, clips: [clip(t.clip)], setCode: null }
+      case 'pair':
+        return { index, kind: t.kind, clips: [clip(t.a), clip(t.b)], setCode: null }
+      case 'triangle':
+        return { index, kind: t.kind, clips: t.samples.map(clip), setCode: null }
+      case 'playtest':
+        return { index, kind: t.kind, clips: [], setCode: t.code }
+    }
+  }
+  const design = designOf(s)
+  return {
+    sessionName: s.name,
+    format: s.format,
+    instructions: s.instructions,
+    deadline: s.deadline,
+    cautions: cautionsFor(s.format),
+    // A triangle asks only which sample is the odd one.
+    attributes: s.format === 'triangle' ? [] : design.attributes,
+    allowNoPreference: s.format === 'pair' && Boolean(s.allow_no_preference),
+    trials: plan.trials.map(trialOf),
+  }
+}
