@@ -2,12 +2,8 @@ import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import type { AppContext } from '../../server/context'
 import { DEMO_STAFF } from '../../server/auth/demoAccounts'
-import {
-  buildPlayerPlan,
-  createRandom,
-  type BlindClip,
-  type PlannedTrial,
-} from '../../server/design/index.ts'
+import { createRandom, type BlindClip, type PlannedTrial } from '../../server/design/index.ts'
+import { buildPlayerPlan } from '../../server/formats/index.ts'
 import { newSeed } from '../../server/sessions/service'
 import { sessionInput } from '../../server/sessions/plans'
 import { loadInvitation, queueInvitationMail } from '../../server/invitations/rows'

@@ -1,6 +1,7 @@
 import { analyseClip, isAudioError, type ClipAnalysis } from '../audio/index.ts'
 import type { ClipKind } from '../../shared/schemas/clips'
 import type { StoredContainer } from './storage'
+import { CLIP_MEASURES, type ClipMeasureKey } from '../../shared/measures'
 
 export interface Measured {
   analysis: ClipAnalysis
@@ -44,12 +45,17 @@ export function measureColumns(m: Measured) {
     channels: a.channels,
     bit_depth: a.bitDepth,
     peak_dbfs: a.peakDbfs,
-    loudness_lufs: m.loudnessLufs,
-    centroid_hz: a.centroidHz,
-    f0_hz: a.f0Hz,
-    t60_s: a.decay?.t60Seconds ?? null,
-    loss_factor: a.decay?.lossFactor ?? null,
-    attack_s: a.attack?.attackSeconds ?? null,
+    ...Object.fromEntries(CLIP_MEASURES.map((spec) => [spec.column, MEASURE_VALUES[spec.key](m)])),
     peaks: JSON.stringify(a.peaks),
   }
+}
+
+/** Each listed measure's value from an analysis (see shared/measures.ts). */
+const MEASURE_VALUES: { [K in ClipMeasureKey]: (m: Measured) => number | null } = {
+  loudnessLufs: (m) => m.loudnessLufs,
+  centroidHz: (m) => m.analysis.centroidHz,
+  f0Hz: (m) => m.analysis.f0Hz,
+  t60S: (m) => m.analysis.decay?.t60Seconds ?? null,
+  lossFactor: (m) => m.analysis.decay?.lossFactor ?? null,
+  attackS: (m) => m.analysis.attack?.attackSeconds ?? null,
 }

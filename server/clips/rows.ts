@@ -1,3 +1,4 @@
+import { CLIP_MEASURES, type ClipMeasureValues } from '../../shared/measures'
 import type { Knex } from 'knex'
 import type { Clip, ClipDetail } from '../../shared/schemas/clips'
 
@@ -66,15 +67,16 @@ export function clipQuery(knex: Knex) {
       'c.channels',
       'c.bit_depth',
       'c.peak_dbfs',
-      'c.loudness_lufs',
-      'c.centroid_hz',
-      'c.f0_hz',
-      'c.t60_s',
-      'c.loss_factor',
-      'c.attack_s',
+      ...CLIP_MEASURES.map((m) => `c.${m.column}`),
       'u.name as created_by_name',
       'c.created_at',
     )
+}
+
+/** The listed measures of a row, by API field (loudness is always measured: uploads need it). */
+function measureFields(r: ClipRow): ClipMeasureValues & { loudnessLufs: number } {
+  const values = Object.fromEntries(CLIP_MEASURES.map((m) => [m.key, r[m.column]]))
+  return values as ClipMeasureValues & { loudnessLufs: number }
 }
 
 export const toClip = (r: ClipRow): Clip => ({
@@ -103,12 +105,7 @@ export const toClip = (r: ClipRow): Clip => ({
   channels: r.channels,
   bitDepth: r.bit_depth,
   peakDbfs: r.peak_dbfs,
-  loudnessLufs: r.loudness_lufs,
-  centroidHz: r.centroid_hz,
-  f0Hz: r.f0_hz,
-  t60S: r.t60_s,
-  lossFactor: r.loss_factor,
-  attackS: r.attack_s,
+  ...measureFields(r),
   createdBy: r.created_by_name,
   createdAt: r.created_at,
 })

@@ -1,8 +1,7 @@
 import { blindCodes } from './blindCodes.ts'
 import { DesignError } from './errors.ts'
 import { deriveSeed } from './random.ts'
-import type { Id, SessionDesignInput, SessionFormat } from './types.ts'
-import { validateDesign } from './validate.ts'
+import type { Id, SessionDesignInput } from './types.ts'
 
 export interface CodeEntry {
   /** A clip (listening formats) or a physical set of a recipe (play-test). */
@@ -27,21 +26,25 @@ export interface SessionCodes {
  * its own code; a hidden duplicate shown under its first code would not be hidden, so repeats
  * have codes of their own too (copies 1, or 2 and 3 in a triangle).
  */
-export function copiesPerItem(format: SessionFormat, duplicates: number): number {
-  const base = format === 'triangle' ? 2 : 1
-  return duplicates > 0 ? 2 * base : base
+export function copiesPerItem(showings: number, duplicates: number): number {
+  return duplicates > 0 ? 2 * showings : showings
+}
+
+/** What a code stands for in a format, and how many showings an item needs in a first pass. */
+export interface CodeSpec {
+  of: CodeEntry['kind']
+  showings: number
 }
 
 const keyOf = (kind: CodeEntry['kind'], id: Id, copy: number) => JSON.stringify([kind, id, copy])
 
 /**
- * The session's codes, drawn once from its seed. Keys are sorted before codes are dealt, so
+ * The session's codes, drawn once from its seed (the design already checked). Keys are sorted before codes are dealt, so
  * the rows coming back from the database in another order cannot change anyone's codes.
  */
-export function sessionCodes(input: SessionDesignInput): SessionCodes {
-  validateDesign(input)
-  const copies = copiesPerItem(input.format, input.duplicates)
-  const kind: CodeEntry['kind'] = input.format === 'playtest' ? 'set' : 'clip'
+export function dealCodes(input: SessionDesignInput, spec: CodeSpec): SessionCodes {
+  const copies = copiesPerItem(spec.showings, input.duplicates)
+  const kind = spec.of
   const ids =
     kind === 'set'
       ? input.recipes

@@ -1,4 +1,5 @@
-// Order designs for blind sessions: pure and seeded. Callers import from here only.
+// Order designs for blind sessions: pure and seeded. Callers import from here only. What each
+// session format makes of these pieces (its plan, codes and rules) is in server/formats.
 export { DesignError } from './errors.ts'
 export { createRandom, deriveSeed, hashSeed, shuffle, type Random, type Seed } from './random.ts'
 export { williamsOrder, williamsOrders, williamsRowCount, williamsSquare } from './williams.ts'
@@ -22,11 +23,15 @@ export {
   blindCodes,
   isObviousCode,
 } from './blindCodes.ts'
-export { copiesPerItem, sessionCodes, type CodeEntry, type SessionCodes } from './codeMap.ts'
-export { validateDesign } from './validate.ts'
-export { buildPlayerPlan, buildSessionPlans } from './plan.ts'
 export {
-  balancedBlock,
+  copiesPerItem,
+  dealCodes,
+  type CodeEntry,
+  type CodeSpec,
+  type SessionCodes,
+} from './codeMap.ts'
+export { checkDesign, type DesignRules } from './validate.ts'
+export {
   playersForDifference,
   playersForPreference,
   playersForTriangle,

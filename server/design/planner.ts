@@ -5,9 +5,6 @@ import {
   triangleSampleSize,
   type SampleSizePlan,
 } from '../analysis/index.ts'
-import { TRIANGLE_BLOCK } from './triangle.ts'
-import type { SessionFormat } from './types.ts'
-import { williamsRowCount } from './williams.ts'
 
 export type { SampleSizePlan }
 
@@ -52,16 +49,6 @@ export function playersForTriangle(input: TrianglePlanningInput): SampleSizePlan
 /** Fewest correct answers out of `players` that show a difference (one-sided, p0 = 1/3). */
 export function triangleCriterion(players: number, alpha = 0.05): number | null {
   return triangleMinimumCorrect(players, alpha)
-}
-
-/**
- * Players that complete one balanced block of the order design: Williams rows for rated
- * clips and sets, two for pairs (AB and BA), twelve for triangles (six orders, both ways).
- */
-export function balancedBlock(format: SessionFormat, recipes: number): number {
-  if (format === 'pair') return 2
-  if (format === 'triangle') return TRIANGLE_BLOCK
-  return williamsRowCount(recipes)
 }
 
 /**

@@ -1,29 +1,32 @@
 import { DesignError } from './errors.ts'
 import type { SessionDesignInput } from './types.ts'
 
-const FORMATS = ['pair', 'rating', 'triangle', 'playtest']
+/** What a format asks of a design: see server/formats. */
+export interface DesignRules {
+  minRecipes: number
+  clipSets: 'none' | 'one-of-each' | 'any'
+}
 
 /**
  * Refuses a design that would give some player a broken plan. Checked before any draw, so a
  * bad session is refused when it is saved rather than when the tenth player opens it.
  */
-export function validateDesign(input: SessionDesignInput): void {
+export function checkDesign(input: SessionDesignInput, rules: DesignRules): void {
   const { format, recipes, clipSets, duplicates, seed } = input
-  if (!FORMATS.includes(format)) throw new DesignError(`Unknown session format "${format}"`)
   if (typeof seed !== 'string' || seed.length === 0) {
     throw new DesignError('A session needs a seed to deal its orders from')
   }
   if (!Number.isInteger(duplicates) || duplicates < 0) {
     throw new DesignError(`Duplicates must be a whole number from 0, got ${duplicates}`)
   }
-  const needed = format === 'pair' || format === 'triangle' ? 2 : 1
+  const needed = rules.minRecipes
   if (recipes.length < needed) {
     throw new DesignError(`A ${format} session needs at least ${needed} recipes`)
   }
   if (new Set(recipes).size !== recipes.length) {
     throw new DesignError('A recipe is listed twice in the session')
   }
-  if (format === 'playtest') return
+  if (rules.clipSets === 'none') return
 
   if (clipSets.length === 0) throw new DesignError(`A ${format} session needs clips to play`)
   const inSession = new Set(recipes)
@@ -44,7 +47,7 @@ export function validateDesign(input: SessionDesignInput): void {
       heard.add(clip.recipeId)
     }
     // Pairs and triangles compare recipes within a set; a gap would leave pairs unplayable.
-    if (format !== 'rating') {
+    if (rules.clipSets === 'one-of-each') {
       const covered = new Set(set.clips.map((clip) => clip.recipeId))
       if (covered.size !== set.clips.length || covered.size !== recipes.length) {
         throw new DesignError(

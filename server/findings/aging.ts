@@ -1,3 +1,4 @@
+import { formatOf } from '../formats/index.ts'
 import type { Knex } from 'knex'
 import {
   holm,
@@ -34,7 +35,7 @@ export async function loadTimePoints(
   session: SessionRow,
   group: Subgroup,
 ): Promise<TimePointRatings[] | null> {
-  if (session.format !== 'rating' && session.format !== 'playtest') return null
+  if (!formatOf(session.format).findings.includes('aging')) return null
   const rootId = session.parent_session_id ?? session.id
   const family: Pick<SessionRow, 'id' | 'time_point_label' | 'status'>[] = await db('sessions')
     .where({ id: rootId })

@@ -1,6 +1,7 @@
 import type { Id, PreferenceAnswer, Rating } from '../analysis/index.ts'
 import type { PlannedTrial } from '../design/index.ts'
-import { trialAnswer, type TrialAnswer } from '../../shared/schemas/rating'
+import { trialAnswer } from '../../shared/schemas/rating'
+import { formatOf, type GivenAnswer } from '../formats/index.ts'
 
 /*
  * Players answer in blind codes; the findings need recipes. Each stored answer is turned back
@@ -13,7 +14,7 @@ import { trialAnswer, type TrialAnswer } from '../../shared/schemas/rating'
  * with bookkeeping as `{ given, … }`; both read the same. Anything that is not a valid answer
  * gives null and is counted as unreadable rather than guessed at.
  */
-export function readAnswer(payload: unknown): TrialAnswer | null {
+export function readAnswer(payload: unknown): GivenAnswer | null {
   let value = payload
   if (typeof value === 'string') {
     try {
@@ -92,7 +93,6 @@ export function resolvePlayerAnswers(
   answers: readonly StoredAnswer[],
   attributes: readonly string[],
 ): ResolvedAnswers {
-  const known = new Set(attributes)
   for (const stored of answers) {
     const trial = trials[stored.trialIndex]
     const answer = readAnswer(stored.payload)
@@ -100,7 +100,7 @@ export function resolvePlayerAnswers(
       out.unreadable++
       continue
     }
-    const base = {
+    const context = {
       player,
       trial: stored.trialIndex,
       repeatOf: trial.repeatOf,
@@ -108,86 +108,7 @@ export function resolvePlayerAnswers(
       answeredAt: stored.answeredAt,
       comment: '',
     }
-    if ((trial.kind === 'rating' || trial.kind === 'playtest') && 'values' in answer) {
-      // A play-test set has no clip; its code's recipe and showing stand in, so reliability
-      // still pairs a set with its hidden repeat.
-      const recipe = trial.kind === 'rating' ? trial.clip.recipeId : trial.recipeId
-      const clip = trial.kind === 'rating' ? trial.clip.clipId : `set:${trial.recipeId}`
-      const code = trial.kind === 'rating' ? trial.clip.code : trial.code
-      const excerpt = trial.kind === 'rating' ? trial.excerptKey : ''
-      const comment = answer.kind === 'playtest' ? (answer.comment ?? '') : ''
-      for (const attribute of attributes) {
-        const value = answer.values[attribute]
-        if (value === undefined) continue
-        out.ratings.push({ player, recipe, attribute, value, clip })
-        out.rows.push({
-          ...base,
-          excerpt,
-          attribute,
-          codes: [code],
-          recipes: [recipe],
-          answerCode: null,
-          answerRecipe: null,
-          value,
-          comment,
-        })
-      }
-    } else if (trial.kind === 'pair' && answer.kind === 'pair') {
-      const sides = [trial.a, trial.b]
-      const recipeOf = (code: number) => sides.find((s) => s.code === code)?.recipeId
-      const common = {
-        ...base,
-        excerpt: trial.excerptKey,
-        codes: sides.map((s) => s.code),
-        recipes: sides.map((s) => s.recipeId),
-        value: null,
-      }
-      const preferred = answer.preferred === null ? null : recipeOf(answer.preferred)
-      if (preferred !== undefined) {
-        out.preferences.push({
-          player,
-          first: trial.a.recipeId,
-          second: trial.b.recipeId,
-          preferred,
-        })
-        out.rows.push({
-          ...common,
-          attribute: 'preference',
-          answerCode: answer.preferred,
-          answerRecipe: preferred,
-        })
-      }
-      for (const [attribute, code] of Object.entries(answer.more)) {
-        const more = recipeOf(code)
-        if (!known.has(attribute) || more === undefined) continue
-        out.more.push({
-          player,
-          attribute,
-          first: trial.a.recipeId,
-          second: trial.b.recipeId,
-          more,
-        })
-        out.rows.push({ ...common, attribute, answerCode: code, answerRecipe: more })
-      }
-    } else if (trial.kind === 'triangle' && answer.kind === 'triangle') {
-      const chosen = trial.samples.find((s) => s.code === answer.odd)
-      if (!chosen) {
-        out.unreadable++
-        continue
-      }
-      const correct = answer.odd === trial.samples[trial.odd].code
-      out.triangles.push({ player, correct, repeat: trial.repeatOf !== null })
-      out.rows.push({
-        ...base,
-        excerpt: trial.excerptKey,
-        attribute: 'odd one out',
-        codes: trial.samples.map((s) => s.code),
-        recipes: trial.samples.map((s) => s.recipeId),
-        answerCode: answer.odd,
-        answerRecipe: chosen.recipeId,
-        value: correct ? 1 : 0,
-      })
-    }
+    if (!formatOf(trial.kind).collect(out, trial, answer, context, attributes)) out.unreadable++
   }
   return out
 }

@@ -1,3 +1,4 @@
+import { CLIP_MEASURES, type MeasureEntry } from '../../shared/measures'
 import {
   computeFindings,
   formatP,
@@ -16,7 +17,6 @@ import type { Instrument, PlayerLevel } from '../../shared/constants'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
 import type {
   AttributeFindings,
-  ClipMeasureName,
   FindingsSummary,
   MorePair,
   ObjectiveRow,
@@ -245,21 +245,15 @@ export function reliabilityFindings(
   }
 }
 
-export interface ClipMeasureRow {
-  id: number
-  recipe_id: number
-  loudness_lufs: number | null
-  centroid_hz: number | null
-  t60_s: number | null
-  attack_s: number | null
-}
+/** The measures findings set against perception, in the order of the registry. */
+export const CORRELATED_MEASURES = CLIP_MEASURES.filter(
+  (m): m is Extract<MeasureEntry, { correlate: true }> => m.correlate,
+)
 
-const MEASURES: { name: ClipMeasureName; unit: string; column: keyof ClipMeasureRow }[] = [
-  { name: 'loudness', unit: 'LUFS', column: 'loudness_lufs' },
-  { name: 'centroid', unit: 'Hz', column: 'centroid_hz' },
-  { name: 'T60', unit: 's', column: 't60_s' },
-  { name: 'attack time', unit: 's', column: 'attack_s' },
-]
+/** A clip's id, recipe and correlated measures, by column. */
+export type ClipMeasureRow = { id: number; recipe_id: number } & {
+  [C in (typeof CORRELATED_MEASURES)[number]['column']]: number | null
+}
 
 /** Spearman between each clip measure and each attribute, with the points behind each rho. */
 export function objectiveFindings(
@@ -269,7 +263,7 @@ export function objectiveFindings(
 ): ObjectiveRow[] {
   const measures: ClipMeasure[] = []
   for (const clip of clips)
-    for (const m of MEASURES) {
+    for (const m of CORRELATED_MEASURES) {
       const value = clip[m.column]
       if (typeof value === 'number' && Number.isFinite(value))
         measures.push({ clip: clip.id, recipe: clip.recipe_id, measure: m.name, value })
@@ -279,7 +273,7 @@ export function objectiveFindings(
   const perceived = clipMeans(clipRatings)
   const names = new Map(attributes.map((a) => [a.key, a.name]))
   const rows: ObjectiveRow[] = []
-  for (const m of MEASURES) {
+  for (const m of CORRELATED_MEASURES) {
     for (const a of attributes) {
       const found = engine.find((e) => e.measure === m.name && e.attribute === a.key)
       const points = clips.flatMap((clip) => {

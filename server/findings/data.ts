@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
-import { buildPlayerPlan, DesignError, sessionCodes } from '../design/index.ts'
+import { DesignError } from '../design/index.ts'
+import { buildPlayerPlan, sessionCodes } from '../formats/index.ts'
 import { conflict, forbidden } from '../errors'
 import type { Role } from '../../shared/constants'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
@@ -11,6 +12,7 @@ import {
   type StoredAnswer,
 } from './answersToRatings'
 import { sessionInput } from '../sessions/plans'
+import { CORRELATED_MEASURES, type ClipMeasureRow } from './compute'
 import { designOf, loadSession, type SessionRow } from '../sessions/rows'
 
 /** Who is asking: services take this rather than the request. */
@@ -160,16 +162,10 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
 }
 
 /** The clip measures objective-vs-perceived compares with, as stored at upload. */
-export async function clipMeasures(db: Knex, clipIds: number[]) {
+export async function clipMeasures(db: Knex, clipIds: number[]): Promise<ClipMeasureRow[]> {
   if (clipIds.length === 0) return []
+  const columns = CORRELATED_MEASURES.map((m) => m.column)
   return (await db('clips')
     .whereIn('id', clipIds)
-    .select('id', 'recipe_id', 'loudness_lufs', 'centroid_hz', 't60_s', 'attack_s')) as {
-    id: number
-    recipe_id: number
-    loudness_lufs: number | null
-    centroid_hz: number | null
-    t60_s: number | null
-    attack_s: number | null
-  }[]
+    .select('id', 'recipe_id', ...columns)) as ClipMeasureRow[]
 }

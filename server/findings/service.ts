@@ -1,3 +1,4 @@
+import { formatOf } from '../formats/index.ts'
 import type { Knex } from 'knex'
 import { INSTRUMENTS, PLAYER_LEVELS } from '../../shared/constants'
 import type { SessionFindings } from '../../shared/schemas/findings'
@@ -62,7 +63,7 @@ export async function computeSessionFindings(
   )
   const excluded = players.filter((p) => p.exclusionReason !== null).map((p) => p.code)
   const format = session.format
-  const lineScale = format === 'rating' || format === 'playtest'
+  const parts = new Set(formatOf(format).findings)
   const answering = {
     readable: new Set(all.rows.map((r) => r.player)).size,
     kept: new Set(kept.rows.map((r) => r.player)).size,
@@ -90,14 +91,15 @@ export async function computeSessionFindings(
     },
     reason: topReason(answersInGroup, answering, data.answers),
     recipes,
-    attributes: lineScale ? lineScaleFindings(kept.ratings, recipes, attributes, excluded) : [],
-    preferences: format === 'pair' ? pairPreferences(kept, recipes, attributes) : null,
-    triangle: format === 'triangle' ? triangleFindings(kept) : null,
+    attributes: parts.has('attributes')
+      ? lineScaleFindings(kept.ratings, recipes, attributes, excluded)
+      : [],
+    preferences: parts.has('preferences') ? pairPreferences(kept, recipes, attributes) : null,
+    triangle: parts.has('triangle') ? triangleFindings(kept) : null,
     reliability: reliabilityFindings(all.ratings, players),
-    objective:
-      format === 'rating'
-        ? objectiveFindings(kept.ratings, await clipMeasures(db, clips), attributes)
-        : [],
+    objective: parts.has('objective')
+      ? objectiveFindings(kept.ratings, await clipMeasures(db, clips), attributes)
+      : [],
     aging: timePoints ? agingFindings(timePoints, recipes, attributes) : null,
   }
   return { findings, data }

@@ -1,3 +1,4 @@
+import { formatOf } from '../formats/index.ts'
 import QRCode from 'qrcode'
 import type { AppContext } from '../context'
 import { conflict } from '../errors'
@@ -19,8 +20,9 @@ export function qrSvg(text: string): Promise<string> {
  */
 export async function labelSheet(ctx: AppContext, sessionId: number): Promise<LabelSheet> {
   const session = await loadSession(ctx.knex, sessionId)
-  if (session.format !== 'playtest')
-    throw conflict('Labels are printed for play-test sessions only')
+  const format = formatOf(session.format)
+  // Labels go on physical sets; a listening session has none.
+  if (format.codes.of !== 'set') throw conflict('Labels are printed for play-test sessions only')
   const input = await sessionInput(ctx.knex, session)
   const recipes: { id: number; name: string; version: number }[] = await ctx
     .knex('recipes')
@@ -43,11 +45,12 @@ export async function labelSheet(ctx: AppContext, sessionId: number): Promise<La
     const sets = []
     const packing = []
     for (const [i, t] of plan.trials.entries()) {
-      if (t.kind !== 'playtest') continue
-      const url = `${link}?set=${t.code}`
-      sets.push({ code: t.code, position: i + 1, url, qrSvg: await qrSvg(url) })
+      const code = format.setCode(t)
+      if (code === null || !('recipeId' in t)) continue
+      const url = `${link}?set=${code}`
+      sets.push({ code, position: i + 1, url, qrSvg: await qrSvg(url) })
       packing.push({
-        code: t.code,
+        code,
         position: i + 1,
         recipeName: recipeName.get(Number(t.recipeId)) ?? `Recipe ${t.recipeId}`,
       })

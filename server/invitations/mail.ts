@@ -1,7 +1,7 @@
 import { renderMail } from '../mail/template'
 import { LOCAL_RULES_NOTE } from '../../shared/cautions'
 import type { SessionFormat } from '../../shared/schemas/sessions'
-import { cautionsFor } from '../sessions/plans'
+import { formatOf } from '../formats/index.ts'
 
 export type InvitationMailKind = 'invitation' | 'reminder'
 
@@ -39,7 +39,7 @@ export function invitationMail(m: InvitationMailInput) {
     WHAT_YOU_DO[m.format],
     ...(m.instructions ? [`Instructions: ${m.instructions}`] : []),
     `Please finish by ${m.deadline} (end of that day, UTC). The link below is yours alone and stops working after the deadline.`,
-    ...cautionsFor(m.format),
+    ...formatOf(m.format).cautions,
   ]
   return renderMail({
     subject: reminder ? `Reminder: ${m.sessionName}` : `Invitation: ${m.sessionName}`,

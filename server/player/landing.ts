@@ -3,7 +3,8 @@ import { AppError, invalidToken } from '../errors'
 import { deadlineEnd, verifyInvitation } from '../auth/invitationTokens'
 import { loadSession, type SessionRow } from '../sessions/rows'
 import { answeredCounts, invitationStatus, type InvitationDbRow } from '../invitations/rows'
-import { cautionsFor, trialCountOf } from '../sessions/plans'
+import { trialCountOf } from '../sessions/plans'
+import { formatOf } from '../formats/index.ts'
 import { firstNameOf } from '../invitations/mail'
 import type { PlayerLanding } from '../../shared/schemas/sessions'
 
@@ -71,7 +72,7 @@ export async function playerLanding(ctx: AppContext, token: string): Promise<Pla
     instructions: session.instructions,
     deadline: session.deadline,
     status: invitationStatus(inv, session, now),
-    cautions: cautionsFor(session.format),
+    cautions: [...formatOf(session.format).cautions],
     trialCount: await trialCountOf(ctx.knex, session),
     answered: (await answeredCounts(ctx.knex, [inv.id])).get(inv.id) ?? 0,
     firstName: firstNameOf(player?.name ?? null),

@@ -3,7 +3,9 @@ import type { Knex } from 'knex'
 import type { AppContext } from '../context'
 import type { PlannedTrial } from '../design/index.ts'
 import { assertConsent, openForAnswers, type PlayerInvitationRow } from './access'
-import { cautionsFor, planFor, sessionInput } from '../sessions/plans'
+import { planFor, sessionInput } from '../sessions/plans'
+import { formatOf } from '../formats/index.ts'
+import { servingsOf } from '../formats/answers'
 import { designOf, type SessionRow } from '../sessions/rows'
 import type { PlayerClipView, PlayerPlanView, PlayerTrialView } from '../../shared/schemas/rating'
 
@@ -39,7 +41,7 @@ export function screensOf(trials: readonly PlannedTrial[]): number[] {
   let screen = -1
   let previous: string | null = null
   return trials.map((t) => {
-    const set = t.kind === 'rating' && t.repeatOf === null ? t.excerptKey : null
+    const set = formatOf(t.kind).screenGroup(t)
     if (set === null || set !== previous) screen++
     previous = set
     return screen
@@ -122,15 +124,6 @@ async function clipFacts(db: Knex, ids: number[]): Promise<Map<number, ClipFacts
   )
 }
 
-const servingsOf = (t: PlannedTrial) =>
-  t.kind === 'rating'
-    ? [t.clip]
-    : t.kind === 'pair'
-      ? [t.a, t.b]
-      : t.kind === 'triangle'
-        ? t.samples
-        : []
-
 export async function playerPlanView(ctx: AppContext, token: string): Promise<PlayerPlanView> {
   const { inv, session } = await openForAnswers(ctx, token)
   assertConsent(inv)
@@ -152,11 +145,16 @@ export async function playerPlanView(ctx: AppContext, token: string): Promise<Pl
       peaks: f?.peaks ?? { min: [], max: [] },
     }
   }
+  const format = formatOf(session.format)
   const trialView = (t: PlannedTrial, index: number): PlayerTrialView => {
-    const base = { index, kind: t.kind, screen: screens[index] }
-    if (t.kind === 'playtest') return { ...base, clips: [], setCode: t.code }
     const clips = servingsOf(t).map(clipView)
-    return { ...base, clips: t.kind === 'triangle' ? alike(clips) : clips, setCode: null }
+    return {
+      index,
+      kind: t.kind,
+      screen: screens[index],
+      clips: format.alikeServings ? alike(clips) : clips,
+      setCode: format.setCode(t),
+    }
   }
 
   return {
@@ -164,9 +162,9 @@ export async function playerPlanView(ctx: AppContext, token: string): Promise<Pl
     format: session.format,
     instructions: session.instructions,
     deadline: session.deadline,
-    cautions: cautionsFor(session.format),
-    attributes: session.format === 'triangle' ? [] : designOf(session).attributes,
-    allowNoPreference: session.format === 'pair' && Boolean(session.allow_no_preference),
+    cautions: [...format.cautions],
+    attributes: format.ratesAttributes ? designOf(session).attributes : [],
+    allowNoPreference: format.noPreferenceOption && Boolean(session.allow_no_preference),
     trials: trials.map(trialView),
   }
 }

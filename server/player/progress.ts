@@ -10,7 +10,7 @@ import {
 import { plannedTrials } from './plan'
 import { givenAnswer } from './answerPayload'
 import { invitationStatus } from '../invitations/rows'
-import { cautionsFor } from '../sessions/plans'
+import { formatOf } from '../formats/index.ts'
 import { firstNameOf } from '../invitations/mail'
 import { HEADPHONE_PASS, type PlayerState } from '../../shared/schemas/rating'
 
@@ -56,7 +56,7 @@ async function stateOf(
       instructions: session.instructions,
       deadline: session.deadline,
       status: invitationStatus(inv, session, ctx.clock.now()),
-      cautions: cautionsFor(session.format),
+      cautions: [...formatOf(session.format).cautions],
       trialCount: trials.length,
       answered: rows.length,
       firstName: firstNameOf(player?.name ?? null),

@@ -1,7 +1,9 @@
 import type { Knex } from 'knex'
 import { validationFailed } from '../errors'
-import { buildPlayerPlan, DesignError, sessionCodes, validateDesign } from '../design/index.ts'
+import { DesignError } from '../design/index.ts'
+import { buildPlayerPlan, sessionCodes, validateDesign } from '../formats/index.ts'
 import { designInput, type StoredDesign } from './rows'
+import { formatOf } from '../formats/index.ts'
 import type { ResolvedClipSet } from '../../shared/schemas/sessions'
 
 interface ClipInfo {
@@ -54,7 +56,8 @@ export async function reviewDesign(
     .filter((id) => recipeName.has(id))
     .map((id) => ({ id, name: recipeName.get(id)! }))
 
-  const listening = design.format !== 'playtest'
+  const format = formatOf(design.format)
+  const listening = format.clipSets !== 'none'
   const clipSets = listening ? await resolveSets(db, design) : []
   if (listening) {
     if (design.clipSets.length === 0)
@@ -80,19 +83,15 @@ export async function reviewDesign(
       for (const c of set.clips) counts.set(c.recipeId, (counts.get(c.recipeId) ?? 0) + 1)
       for (const r of recipes) {
         const n = counts.get(r.id) ?? 0
-        if (n === 0 && design.format === 'rating')
-          warnings.push(`${label} has no clip of ${r.name}`)
+        if (n === 0 && format.clipSets === 'any') warnings.push(`${label} has no clip of ${r.name}`)
         else if (n === 0)
           fail('clipSets', `${label} has no clip of ${r.name}: every recipe needs one`)
-        else if (n > 1 && design.format !== 'rating')
+        else if (n > 1 && format.clipSets === 'one-of-each')
           fail('clipSets', `${label} holds ${n} clips of ${r.name}; pairs and triangles need one`)
       }
     }
   }
-  if (
-    (design.format === 'rating' || design.format === 'playtest') &&
-    design.attributes.length === 0
-  )
+  if (format.findings.includes('attributes') && design.attributes.length === 0)
     fail('attributes', 'Choose at least one attribute to rate')
   if (now && design.deadline < today(now))
     fail('deadline', 'The deadline has passed; choose today or a later day')
@@ -133,7 +132,7 @@ function countTrials(
     return perPlayer + design.duplicates
   } catch (err) {
     if (!(err instanceof DesignError)) throw err
-    fail(design.format === 'playtest' ? 'recipeIds' : 'clipSets', err.message)
+    fail(formatOf(design.format).clipSets === 'none' ? 'recipeIds' : 'clipSets', err.message)
     return 0
   }
 }

@@ -1,21 +1,11 @@
-import {
-  buildPlayerPlan,
-  DesignError,
-  sessionCodes,
-  type SessionDesignInput,
-} from '../design/index.ts'
+import { DesignError, type SessionDesignInput } from '../design/index.ts'
+import { buildPlayerPlan, sessionCodes } from '../formats/index.ts'
 import { conflict } from '../errors'
-import { LISTENING_CAUTION, STRING_FITTING_CAUTION } from '../../shared/cautions'
 import type { Knex } from 'knex'
 import { clipRecipes, designInput, designOf, type SessionRow } from './rows'
-import type { SessionFormat } from '../../shared/schemas/sessions'
 
 // A session's plans as the design rebuilds them: shared by the player's pages, the staff
 // preview, invitations, labels and findings.
-
-export function cautionsFor(format: SessionFormat): string[] {
-  return format === 'playtest' ? [STRING_FITTING_CAUTION] : [LISTENING_CAUTION]
-}
 
 /** A session's design ready to plan from, with clips paired to recipes from the database. */
 export async function sessionInput(db: Knex, s: SessionRow) {

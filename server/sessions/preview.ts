@@ -1,6 +1,8 @@
 import type { Knex } from 'knex'
 import type { PlannedTrial } from '../design/index.ts'
-import { cautionsFor, planFor, sessionInput } from './plans'
+import { planFor, sessionInput } from './plans'
+import { formatOf } from '../formats/index.ts'
+import { servingsOf } from '../formats/answers'
 import { designOf, type SessionRow } from './rows'
 import type { PreviewClip, PreviewTrial, SessionPreview } from '../../shared/schemas/sessions'
 
@@ -23,28 +25,21 @@ export async function sessionPreview(
     code: c.code,
     audioUrl: audioUrl(Number(c.clipId), c.code),
   })
-  const trialOf = (t: PlannedTrial, index: number): PreviewTrial => {
-    switch (t.kind) {
-      case 'rating':
-        return { index, kind: t.kind, clips: [clip(t.clip)], setCode: null }
-      case 'pair':
-        return { index, kind: t.kind, clips: [clip(t.a), clip(t.b)], setCode: null }
-      case 'triangle':
-        return { index, kind: t.kind, clips: t.samples.map(clip), setCode: null }
-      case 'playtest':
-        return { index, kind: t.kind, clips: [], setCode: t.code }
-    }
-  }
-  const design = designOf(s)
+  const format = formatOf(s.format)
+  const trialOf = (t: PlannedTrial, index: number): PreviewTrial => ({
+    index,
+    kind: t.kind,
+    clips: servingsOf(t).map(clip),
+    setCode: format.setCode(t),
+  })
   return {
     sessionName: s.name,
     format: s.format,
     instructions: s.instructions,
     deadline: s.deadline,
-    cautions: cautionsFor(s.format),
-    // A triangle asks only which sample is the odd one.
-    attributes: s.format === 'triangle' ? [] : design.attributes,
-    allowNoPreference: s.format === 'pair' && Boolean(s.allow_no_preference),
+    cautions: [...format.cautions],
+    attributes: format.ratesAttributes ? designOf(s).attributes : [],
+    allowNoPreference: format.noPreferenceOption && Boolean(s.allow_no_preference),
     trials: plan.trials.map(trialOf),
   }
 }

@@ -1,3 +1,4 @@
+import { formatOf } from '../formats/index.ts'
 import type { Knex } from 'knex'
 import { notFound } from '../errors'
 import type { SessionDesignInput } from '../design/index.ts'
@@ -64,7 +65,7 @@ export function designInput(
     format: d.format,
     recipes: d.recipeIds,
     clipSets:
-      d.format === 'playtest'
+      formatOf(d.format).clipSets === 'none'
         ? []
         : d.clipSets.map((s) => ({
             excerptKey: s.key,

@@ -1,3 +1,4 @@
+import type { CorrelatedMeasureName } from '../measures'
 import { z } from 'zod'
 import { INSTRUMENTS, PLAYER_LEVELS, type Instrument, type PlayerLevel } from '../constants'
 import type { SessionFormat, SessionStatus } from './sessions'
@@ -220,7 +221,8 @@ export interface ReliabilityFindings {
   players: PlayerReliabilityRow[]
 }
 
-export type ClipMeasureName = 'loudness' | 'centroid' | 'T60' | 'attack time'
+/** A measure findings correlate with perception: see shared/measures.ts. */
+export type ClipMeasureName = CorrelatedMeasureName
 
 export interface ObjectiveRow {
   measure: ClipMeasureName

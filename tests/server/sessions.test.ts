@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { fixedClock } from '../../server/clock'
-import { buildPlayerPlan, sessionCodes } from '../../server/design/index.ts'
+import { buildPlayerPlan, sessionCodes } from '../../server/formats/index.ts'
 import {
   pairedTSampleSize,
   signTestSampleSize,

@@ -1,9 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
-  buildPlayerPlan,
-  buildSessionPlans,
   DesignError,
-  sessionCodes,
   triangleOrderSequence,
   williamsRowCount,
   type BlindClip,
@@ -14,6 +11,7 @@ import {
   type SessionDesignInput,
   type TriangleTrialPlan,
 } from '../../../server/design/index.ts'
+import { buildPlayerPlan, buildSessionPlans, sessionCodes } from '../../../server/formats/index.ts'
 
 const excerpts = ['open-strings', 'scale', 'phrase']
 

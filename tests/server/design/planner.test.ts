@@ -5,13 +5,13 @@ import {
   triangleSampleSize,
 } from '../../../server/analysis/index.ts'
 import {
-  balancedBlock,
   playersForDifference,
   playersForPreference,
   playersForTriangle,
   roundUpToBlock,
   triangleCriterion,
 } from '../../../server/design/index.ts'
+import { balancedBlock } from '../../../server/formats/index.ts'
 
 describe('session planner figures', () => {
   it('plans 10 players for a difference of one SD (paired t, alpha 0.05, power 0.8)', () => {

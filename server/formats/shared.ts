@@ -1,0 +1,53 @@
+import type { BlindClip, DesignClip, Id, SessionCodes } from '../design/index.ts'
+import type { AddProblem } from './types'
+
+// Small pieces more than one format needs.
+
+/** A record with its keys in a fixed order, so equal answers are equal as text. */
+export const sortedRecord = <V>(r: Record<string, V>): Record<string, V> =>
+  Object.fromEntries(Object.entries(r).sort(([x], [y]) => (x < y ? -1 : x > y ? 1 : 0)))
+
+/** Attribute keys must be the session's own. */
+export function checkAttributeKeys(
+  add: AddProblem,
+  field: string,
+  keys: string[],
+  known: readonly string[],
+): void {
+  for (const key of keys)
+    if (!known.includes(key)) add(`${field}.${key}`, 'Not rated in this session')
+}
+
+/**
+ * Codes must be this trial's, so an answer meant for another trial (or another player) is
+ * refused rather than counted against the wrong recording.
+ */
+export function checkCode(add: AddProblem, field: string, code: number, served: BlindClip[]) {
+  if (!served.some((c) => c.code === code))
+    add(field, `Code ${code} is not one of this trial's recordings`)
+}
+
+/** The recipe behind a code among the clips a trial served; -1 when none of them has it. */
+export const recipeOfCode = (served: BlindClip[], code: number): number =>
+  Number(served.find((c) => c.code === code)?.recipeId ?? -1)
+
+/** A clip with its code for one showing. */
+export const blindClip = (codes: SessionCodes, clip: DesignClip, copy: number): BlindClip => ({
+  ...clip,
+  code: codes.clip(clip.clipId, copy),
+})
+
+/** The clip of a recipe in a matched set (validated designs have exactly one). */
+export const clipOfRecipe = (clips: DesignClip[], recipeId: Id) =>
+  clips.find((clip) => clip.recipeId === recipeId) as DesignClip
+
+/** Line-scale sliders: at least one moved, every key the session's. */
+export function checkSliders(
+  add: AddProblem,
+  values: Record<string, number>,
+  known: readonly string[],
+): void {
+  if (Object.keys(values).length === 0)
+    add('answer.values', 'Move at least one slider before saving')
+  checkAttributeKeys(add, 'answer.values', Object.keys(values), known)
+}
