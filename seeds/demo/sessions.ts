@@ -8,6 +8,7 @@ import { newSeed } from '../../server/sessions/service'
 import { sessionInput } from '../../server/sessions/plans'
 import { loadInvitation, queueInvitationMail } from '../../server/invitations/rows'
 import { loadSession } from '../../server/sessions/rows'
+import { fixServedPlans } from '../../server/sessions/servedRecord'
 import { storedAnswer } from '../../server/player/answerPayload'
 import { DEFAULT_ATTRIBUTES, type SessionFormat } from '../../shared/schemas/sessions'
 import { trialAnswer, type TrialAnswer } from '../../shared/schemas/rating'
@@ -393,6 +394,12 @@ async function invitePlayers(
       started_at: answers > 0 ? at(1) : null,
       completed_at: answers === plan.trials.length ? at(answers + 1) : null,
     })
+    await fixServedPlans(
+      trx,
+      session,
+      [{ id: invId as number, player_index: index }],
+      new Date(invitedAt),
+    )
     for (const [k, t] of plan.trials.slice(0, answers).entries())
       await trx('answers').insert({
         invitation_id: invId,

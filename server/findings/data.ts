@@ -1,6 +1,4 @@
 import type { Knex } from 'knex'
-import { DesignError } from '../design/index.ts'
-import { buildPlayerPlan, sessionCodes } from '../formats/index.ts'
 import { conflict, forbidden } from '../errors'
 import type { Role } from '../../shared/constants'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
@@ -11,7 +9,7 @@ import {
   type ResolvedAnswers,
   type StoredAnswer,
 } from './answersToRatings'
-import { sessionInput } from '../sessions/plans'
+import { sessionServedTrials } from '../sessions/servedRecord'
 import { CORRELATED_MEASURES, type ClipMeasureRow } from './compute'
 import { designOf, loadSession, type SessionRow } from '../sessions/rows'
 
@@ -124,21 +122,15 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
   const resolved = emptyResolved()
   const keys = design.attributes.map((a) => a.key)
   if (stored.length > 0) {
-    const input = await sessionInput(db, session)
-    try {
-      const codes = sessionCodes(input)
-      for (const inv of invitations) {
-        const answers = byInvitation.get(inv.invitation_id)
-        if (!answers) continue
-        const plan = buildPlayerPlan(input, inv.player_index, codes)
-        resolvePlayerAnswers(resolved, inv.code, plan.trials, answers, keys)
-      }
-    } catch (err) {
-      if (!(err instanceof DesignError)) throw err
-      throw conflict(
-        "This session's design can no longer be rebuilt, so its answers cannot be read: " +
-          err.message,
-      )
+    // Each answer is read through what that player was served, as recorded at invitation.
+    const served = await sessionServedTrials(db, session)
+    for (const inv of invitations) {
+      const answers = byInvitation.get(inv.invitation_id)
+      if (!answers) continue
+      const trials = served.get(inv.invitation_id)
+      if (!trials)
+        throw conflict(`Invitation ${inv.invitation_id} has answers but no served record`)
+      resolvePlayerAnswers(resolved, inv.code, trials, answers, keys)
     }
   }
 

@@ -2,8 +2,8 @@ import { formatOf } from '../formats/index.ts'
 import QRCode from 'qrcode'
 import type { AppContext } from '../context'
 import { conflict } from '../errors'
-import { loadSession } from '../sessions/rows'
-import { planFor, sessionInput } from '../sessions/plans'
+import { designOf, loadSession } from '../sessions/rows'
+import { sessionServedTrials } from '../sessions/servedRecord'
 import { invitationUrl, type InvitationDbRow } from './rows'
 import { STRING_FITTING_CAUTION } from '../../shared/cautions'
 import type { LabelSheet } from '../../shared/schemas/sessions'
@@ -23,10 +23,11 @@ export async function labelSheet(ctx: AppContext, sessionId: number): Promise<La
   const format = formatOf(session.format)
   // Labels go on physical sets; a listening session has none.
   if (format.codes.of !== 'set') throw conflict('Labels are printed for play-test sessions only')
-  const input = await sessionInput(ctx.knex, session)
+  const served = await sessionServedTrials(ctx.knex, session)
+  const recipeIds = designOf(session).recipeIds
   const recipes: { id: number; name: string; version: number }[] = await ctx
     .knex('recipes')
-    .whereIn('id', input.recipes as number[])
+    .whereIn('id', recipeIds)
     .select('id', 'name', 'version')
   const recipeName = new Map(
     recipes.map((r) => [r.id, r.version > 1 ? `${r.name} v${r.version}` : r.name]),
@@ -40,11 +41,11 @@ export async function labelSheet(ctx: AppContext, sessionId: number): Promise<La
     .select('i.*', 'p.code', 'p.name')
   const players = []
   for (const inv of invitations) {
-    const plan = planFor(input, inv.player_index)
+    const trials = served.get(inv.id) ?? []
     const link = invitationUrl(ctx, inv, session)
     const sets = []
     const packing = []
-    for (const [i, t] of plan.trials.entries()) {
+    for (const [i, t] of trials.entries()) {
       const code = format.setCode(t)
       if (code === null || !('recipeId' in t)) continue
       const url = `${link}?set=${code}`

@@ -1,3 +1,4 @@
+import { fixServedPlans } from '../sessions/servedRecord'
 import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
 import type { AppContext } from '../context'
@@ -85,6 +86,7 @@ export async function invitePlayers(
         last_sent_at: now.toISOString(),
       })
       const inv = await loadInvitation(trx, invId as number)
+      await fixServedPlans(trx, session, [inv], now)
       await queueInvitationMail(ctx, trx, 'invitation', inv, session, player, {
         answered: 0,
         trialCount,

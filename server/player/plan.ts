@@ -3,7 +3,7 @@ import type { Knex } from 'knex'
 import type { AppContext } from '../context'
 import type { PlannedTrial } from '../design/index.ts'
 import { assertConsent, openForAnswers, type PlayerInvitationRow } from './access'
-import { planFor, sessionInput } from '../sessions/plans'
+import { servedTrials } from '../sessions/servedRecord'
 import { formatOf } from '../formats/index.ts'
 import { servingsOf } from '../formats/answers'
 import { designOf, type SessionRow } from '../sessions/rows'
@@ -12,9 +12,8 @@ import type { PlayerClipView, PlayerPlanView, PlayerTrialView } from '../../shar
 /** Waveforms are drawn on a phone at most this many columns wide; more is only bytes. */
 export const PEAK_BUCKETS = 600
 
-// Plans are pure functions of the stored design, so a player's plan is kept between their
-// saves; the key changes whenever the session row does, so an edited design is never served
-// from an old plan.
+// A player's served record is kept between their saves; the key changes whenever the session
+// row does, so a design edited before any answer is never served from an old record.
 const plans = new Map<string, PlannedTrial[]>()
 const PLANS_MAX = 2000
 
@@ -22,12 +21,12 @@ const PLANS_MAX = 2000
 export async function plannedTrials(
   db: Knex,
   session: SessionRow,
-  inv: Pick<PlayerInvitationRow, 'player_index'>,
+  inv: Pick<PlayerInvitationRow, 'id'>,
 ): Promise<PlannedTrial[]> {
-  const key = `${session.id}:${session.updated_at}:${session.seed}:${inv.player_index}`
+  const key = `${inv.id}:${session.updated_at}`
   const hit = plans.get(key)
   if (hit) return hit
-  const trials = planFor(await sessionInput(db, session), inv.player_index).trials
+  const trials = await servedTrials(db, session, inv.id)
   plans.set(key, trials)
   if (plans.size > PLANS_MAX) plans.delete(plans.keys().next().value!)
   return trials

@@ -27,6 +27,8 @@ export interface SessionRow {
   reminder_days_before: number | null
   parent_session_id: number | null
   time_point_label: string | null
+  /** Why the served record of an older session could not be rebuilt; null when it is sound. */
+  record_problem?: string | null
   created_by: number | null
   created_at: string
   updated_at: string

@@ -1,3 +1,4 @@
+import { refixSessionPlans } from './servedRecord'
 import { randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
 import type { AppContext } from '../context'
@@ -182,6 +183,9 @@ export async function updateSession(
     await trx('sessions')
       .where({ id })
       .update({ ...changes, updated_at: now.toISOString() })
+    // Nobody has answered yet (the design would be locked): what players will be served follows.
+    if (lockedTouched.length > 0 && row.status === 'open')
+      await refixSessionPlans(trx, await loadSession(trx, id), now)
     await recordAudit(trx, now, actor, {
       action: 'session.updated',
       targetType: 'session',
