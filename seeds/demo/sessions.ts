@@ -9,7 +9,7 @@ import { sessionInput } from '../../server/sessions/plans'
 import { loadInvitation, queueInvitationMail } from '../../server/invitations/rows'
 import { loadSession } from '../../server/sessions/rows'
 import { fixServedPlans } from '../../server/sessions/servedRecord'
-import { storedAnswer } from '../../server/player/answerPayload'
+import { storedAnswer } from '../../server/answers/stored'
 import { DEFAULT_ATTRIBUTES, type SessionFormat } from '../../shared/schemas/sessions'
 import { trialAnswer, type TrialAnswer } from '../../shared/schemas/rating'
 

@@ -1,36 +1,19 @@
 import type { Id, PreferenceAnswer, Rating } from '../analysis/index.ts'
 import type { PlannedTrial } from '../design/index.ts'
-import { trialAnswer } from '../../shared/schemas/rating'
-import { formatOf, type GivenAnswer } from '../formats/index.ts'
+import { formatOf } from '../formats/index.ts'
+import { readAnswer, UnreadableAnswer } from '../answers/stored'
 
 /*
  * Players answer in blind codes; the findings need recipes. Each stored answer is turned back
- * into recipes through the player's own plan (rebuilt from the session seed), so nothing but
- * the plan ever links a code to a recipe. Pure: no database here.
+ * into recipes through what that player was served (the served record), so nothing but the
+ * record ever links a code to a recipe. Pure: no database here.
  */
 
-/**
- * The answer inside a stored payload. The answer service may store the bare answer or wrap it
- * with bookkeeping as `{ given, … }`; both read the same. Anything that is not a valid answer
- * gives null and is counted as unreadable rather than guessed at.
- */
-export function readAnswer(payload: unknown): GivenAnswer | null {
-  let value = payload
-  if (typeof value === 'string') {
-    try {
-      value = JSON.parse(value)
-    } catch {
-      return null
-    }
-  }
-  if (value && typeof value === 'object' && 'given' in value) value = value.given
-  const parsed = trialAnswer.safeParse(value)
-  return parsed.success ? parsed.data : null
-}
-
-export interface StoredAnswer {
+/** One stored answer row of a player, as findings load it. */
+export interface AnswerRow {
+  id: number
   trialIndex: number
-  payload: unknown
+  payload: string
   answeredAt: string
 }
 
@@ -90,16 +73,12 @@ export function resolvePlayerAnswers(
   out: ResolvedAnswers,
   player: Id,
   trials: readonly PlannedTrial[],
-  answers: readonly StoredAnswer[],
+  answers: readonly AnswerRow[],
   attributes: readonly string[],
 ): ResolvedAnswers {
   for (const stored of answers) {
     const trial = trials[stored.trialIndex]
-    const answer = readAnswer(stored.payload)
-    if (!trial || !answer || answer.kind !== trial.kind) {
-      out.unreadable++
-      continue
-    }
+    const answer = readAnswer(stored, trial)
     const context = {
       player,
       trial: stored.trialIndex,
@@ -108,7 +87,8 @@ export function resolvePlayerAnswers(
       answeredAt: stored.answeredAt,
       comment: '',
     }
-    if (!formatOf(trial.kind).collect(out, trial, answer, context, attributes)) out.unreadable++
+    if (!formatOf(trial.kind).collect(out, trial, answer, context, attributes))
+      throw new UnreadableAnswer(stored.id, 'it names nothing its trial served')
   }
   return out
 }

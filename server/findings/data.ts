@@ -7,7 +7,7 @@ import {
   emptyResolved,
   resolvePlayerAnswers,
   type ResolvedAnswers,
-  type StoredAnswer,
+  type AnswerRow,
 } from './answersToRatings'
 import { sessionServedTrials } from '../sessions/servedRecord'
 import { CORRELATED_MEASURES, type ClipMeasureRow } from './compute'
@@ -98,6 +98,7 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
       'x.reason',
     )
   const stored: {
+    id: number
     invitation_id: number
     trial_index: number
     payload: string
@@ -111,11 +112,16 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
             invitations.map((i) => i.invitation_id),
           )
           .orderBy(['invitation_id', 'trial_index'])
-          .select('invitation_id', 'trial_index', 'payload', 'answered_at')
-  const byInvitation = new Map<number, StoredAnswer[]>()
+          .select('id', 'invitation_id', 'trial_index', 'payload', 'answered_at')
+  const byInvitation = new Map<number, AnswerRow[]>()
   for (const a of stored) {
     const list = byInvitation.get(a.invitation_id) ?? []
-    list.push({ trialIndex: a.trial_index, payload: a.payload, answeredAt: a.answered_at })
+    list.push({
+      id: a.id,
+      trialIndex: a.trial_index,
+      payload: a.payload,
+      answeredAt: a.answered_at,
+    })
     byInvitation.set(a.invitation_id, list)
   }
 

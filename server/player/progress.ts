@@ -8,7 +8,7 @@ import {
   type PlayerAccess,
 } from './access'
 import { plannedTrials } from './plan'
-import { givenAnswer } from './answerPayload'
+import { readAnswer } from '../answers/stored'
 import { invitationStatus } from '../invitations/rows'
 import { formatOf } from '../formats/index.ts'
 import { firstNameOf } from '../invitations/mail'
@@ -27,15 +27,15 @@ async function stateOf(
   { inv, session, canAnswer }: PlayerAccess,
 ): Promise<PlayerState> {
   const trials = await plannedTrials(ctx.knex, session, inv)
-  const rows: { trial_index: number; payload: string }[] = await ctx
+  const rows: { id: number; trial_index: number; payload: string }[] = await ctx
     .knex('answers')
     .where({ invitation_id: inv.id })
     .orderBy('trial_index')
-    .select('trial_index', 'payload')
-  const answers = rows.flatMap((r) => {
-    const answer = givenAnswer(r.payload, trials[r.trial_index] ?? null)
-    return answer ? [{ trialIndex: r.trial_index, answer }] : []
-  })
+    .select('id', 'trial_index', 'payload')
+  const answers = rows.map((r) => ({
+    trialIndex: r.trial_index,
+    answer: readAnswer(r, trials[r.trial_index]),
+  }))
   const player: { name: string | null } | undefined = await ctx
     .knex('players')
     .where({ id: inv.player_id })

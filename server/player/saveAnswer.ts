@@ -11,7 +11,7 @@ import { syncTransaction } from '../db/syncTransaction'
 import { plannedTrials } from './plan'
 import type { GivenAnswer } from '../formats/index.ts'
 import { answerProblems } from '../formats/answers'
-import { sameAnswer, storedAnswer } from './answerPayload'
+import { sameAnswer, storedAnswer } from '../answers/stored'
 import { designOf } from '../sessions/rows'
 import type { SaveAnswerResult } from '../../shared/schemas/rating'
 

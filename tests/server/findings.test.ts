@@ -367,21 +367,29 @@ describe('findings with too little data', () => {
     expectNoNaN(f)
   })
 
-  it('sets aside stored answers that fit neither the plan nor the answer format', async () => {
+  it('refuses to compute around a stored answer it cannot read, and names the answer', async () => {
     const s = await study('rating', 2, () => () => ({ kind: 'rating', values: { brightness: 50 } }))
     const inv = await t.knex('invitations').where({ session_id: s.id }).first()
-    await t.knex('answers').insert([
-      {
-        invitation_id: inv.id,
-        trial_index: 999,
-        payload: '{"kind":"rating","values":{}}',
-        answered_at: 'x',
-      },
-      { invitation_id: inv.id, trial_index: 998, payload: 'not json', answered_at: 'x' },
-    ])
-    const f = await findingsOf(analyst, s.id)
-    expect(f.summary.unreadable).toBe(2)
-    expectNoNaN(f)
+    const [outside] = await t.knex('answers').insert({
+      invitation_id: inv.id,
+      trial_index: 999,
+      payload: '{"kind":"rating","values":{}}',
+      answered_at: 'x',
+    })
+    let res = await analyst.get(`/api/findings/${s.id}`)
+    expect(res.status).toBe(409)
+    expect(res.body.error.message).toBe(
+      `Answer ${outside} cannot be read: its trial is not in the served record`,
+    )
+
+    await t.knex('answers').where({ id: outside }).delete()
+    const damaged = await t.knex('answers').where({ invitation_id: inv.id }).first('id')
+    await t.knex('answers').where({ id: damaged.id }).update({ payload: 'not json' })
+    res = await analyst.get(`/api/findings/${s.id}`)
+    expect(res.status).toBe(409)
+    expect(res.body.error.message).toBe(
+      `Answer ${damaged.id} cannot be read: it is stored in an unknown shape`,
+    )
   })
 })
 

@@ -1,5 +1,8 @@
 import type { Knex } from 'knex'
 import type { Agent } from './helpers'
+import type { PlannedTrial } from '../../server/design/index.ts'
+import type { GivenAnswer } from '../../server/formats/index.ts'
+import { storedAnswer } from '../../server/answers/stored'
 
 // Sessions only refer to clips by id, so these tests store clip rows without audio files.
 
@@ -112,13 +115,34 @@ export async function openStudy(
   return { id: created.body.session.id, session: opened.body.session }
 }
 
-/** Stores answers as the rating flow will, so locks and progress can be tested now. */
+/** A valid blind answer to a served trial: the first code, or 50 on the first attribute. */
+function sampleAnswer(trial: PlannedTrial): GivenAnswer {
+  switch (trial.kind) {
+    case 'rating':
+      return { kind: 'rating', values: { brightness: 50 } }
+    case 'playtest':
+      return { kind: 'playtest', values: { brightness: 50 }, comment: '' }
+    case 'pair':
+      return { kind: 'pair', preferred: trial.a.code, more: {} }
+    case 'triangle':
+      return { kind: 'triangle', odd: trial.samples[0].code }
+  }
+}
+
+/**
+ * Stores answers to the invitation's served trials as the answer service does, without going
+ * through the player's steps, so locks and progress can be tested on their own.
+ */
 export async function addAnswers(knex: Knex, invitationId: number, trials: number[], at: string) {
+  const row: { trials: string } = await knex('served_plans')
+    .where({ invitation_id: invitationId })
+    .first('trials')
+  const served = (JSON.parse(row.trials) as { trials: PlannedTrial[] }).trials
   for (const trial of trials)
     await knex('answers').insert({
       invitation_id: invitationId,
       trial_index: trial,
-      payload: JSON.stringify({ value: 50 }),
+      payload: JSON.stringify(storedAnswer(served[trial], sampleAnswer(served[trial]))),
       answered_at: at,
     })
 }

@@ -1,11 +1,14 @@
 import type { BlindClip, PlannedTrial } from '../design/index.ts'
-import { trialAnswer, type TrialAnswer } from '../../shared/schemas/rating'
+import { trialAnswer } from '../../shared/schemas/rating'
+import { AppError } from '../errors'
 import { formatOf, type GivenAnswer, type ResolvedFacts } from '../formats/index.ts'
 import { canonicalAnswer } from '../formats/answers'
 
-// What an answers row holds: the blind answer as the player gave it (`given`), and beside it
-// the server-side truth (clips, recipes, the odd sample) that findings need. Only `given` ever
-// goes back to a player.
+// The one reader and writer of stored answers. An answers row holds the blind answer as the
+// player gave it (`given`) and beside it the server-side truth (clips, recipes, the odd sample)
+// of what was served; only `given` ever goes back to a player. The player's own pages, saving,
+// findings and exports all read answers here, and an answer in a shape this module does not
+// know is an error naming the answer, never a silent skip.
 
 interface ServedClip {
   code: number
@@ -58,16 +61,39 @@ export function storedAnswer(trial: PlannedTrial, given: GivenAnswer): StoredAns
   }
 }
 
+/** A stored answer that cannot be read: the record is damaged, not the request. */
+export class UnreadableAnswer extends AppError {
+  constructor(
+    readonly answerId: number,
+    why: string,
+  ) {
+    super('conflict', `Answer ${answerId} cannot be read: ${why}`)
+  }
+}
+
 export function sameAnswer(payload: string, answer: GivenAnswer): boolean {
-  const stored = givenAnswer(payload, null)
+  const stored = knownShape(payload, null)
   return stored !== null && JSON.stringify(stored) === JSON.stringify(canonicalAnswer(answer))
 }
 
 /**
- * The blind answer in a stored payload. Rows written before the player pages existed (the
- * demo) hold an older shape by position; with the trial at hand they are read back in codes.
+ * The blind answer of a stored row, for the trial it was saved for. Three shapes are known: the
+ * current `{ given, served, resolved }`, a bare answer, and the positional shape of rows
+ * written before answers were kept in codes (read with the trial at hand).
  */
-export function givenAnswer(payload: string, trial: PlannedTrial | null): TrialAnswer | null {
+export function readAnswer(
+  row: { id: number; payload: string },
+  trial: PlannedTrial | undefined,
+): GivenAnswer {
+  if (!trial) throw new UnreadableAnswer(row.id, 'its trial is not in the served record')
+  const answer = knownShape(row.payload, trial)
+  if (!answer) throw new UnreadableAnswer(row.id, 'it is stored in an unknown shape')
+  if (answer.kind !== trial.kind)
+    throw new UnreadableAnswer(row.id, `it is a ${answer.kind} answer to a ${trial.kind} trial`)
+  return answer
+}
+
+function knownShape(payload: string, trial: PlannedTrial | null): GivenAnswer | null {
   let data: unknown
   try {
     data = JSON.parse(payload)
@@ -76,12 +102,12 @@ export function givenAnswer(payload: string, trial: PlannedTrial | null): TrialA
   }
   if (typeof data !== 'object' || data === null) return null
   const record = data as Record<string, unknown>
-  const current = trialAnswer.safeParse(record.given)
+  const current = trialAnswer.safeParse('given' in record ? record.given : record)
   if (current.success) return canonicalAnswer(current.data)
   return trial ? olderAnswer(record, trial) : null
 }
 
-function olderAnswer(r: Record<string, unknown>, t: PlannedTrial): TrialAnswer | null {
+function olderAnswer(r: Record<string, unknown>, t: PlannedTrial): GivenAnswer | null {
   const parsed = trialAnswer.safeParse(formatOf(t.kind).olderAnswer?.(r, t) ?? null)
   return parsed.success ? canonicalAnswer(parsed.data) : null
 }
