@@ -93,11 +93,11 @@ export {
   type AttributeInfo,
   type Findings,
   type FindingsInput,
-  type OmnibusLine,
-  type PairRow,
   type RecipeInfo,
   type RecipeMean,
 } from './findings.ts'
+export type { PairRow } from './recipePairs.ts'
+export type { OmnibusLine } from './omnibus.ts'
 export {
   preferenceFindings,
   type PreferenceAnswer,

@@ -1,0 +1,97 @@
+import { hi, lo, type ExportTable } from './csv'
+
+// The attribute rating tables: means per recipe, recipe pairs and the omnibus test per
+// attribute, and the clip measures against what players perceived.
+
+export const means: ExportTable = {
+  header: ['attribute', 'recipe', 'n', 'mean', 'sd', 'ci_lower', 'ci_upper', 'reason'],
+  rows: (f) =>
+    f.attributes.flatMap((a) =>
+      a.recipes.map((r) => [a.name, r.name, r.n, r.mean, r.sd, lo(r.ci), hi(r.ci), r.reason]),
+    ),
+}
+
+export const pairs: ExportTable = {
+  header: [
+    'attribute',
+    'first',
+    'second',
+    'n',
+    'dropped',
+    'difference_second_minus_first',
+    'ci_lower',
+    'ci_upper',
+    't',
+    'df',
+    'p',
+    'holm_p',
+    'wilcoxon_v',
+    'wilcoxon_p',
+    'wilcoxon_method',
+    'wilcoxon_holm_p',
+    'dz',
+    'rank_biserial',
+    'sentence',
+    'reason',
+  ],
+  rows: (f, name) =>
+    f.attributes.flatMap((a) =>
+      a.pairs.map((p) => [
+        a.name,
+        name(p.first),
+        name(p.second),
+        p.n,
+        p.dropped,
+        p.difference,
+        lo(p.ci),
+        hi(p.ci),
+        p.t,
+        p.df,
+        p.p,
+        p.holmP,
+        p.wilcoxonV,
+        p.wilcoxonP,
+        p.wilcoxonMethod,
+        p.wilcoxonHolmP,
+        p.dz,
+        p.rankBiserial,
+        p.sentence,
+        p.reason,
+      ]),
+    ),
+}
+
+export const omnibus: ExportTable = {
+  header: [
+    'attribute',
+    'test',
+    'n',
+    'dropped',
+    'recipes',
+    'chi_square',
+    'df',
+    'p',
+    'kendall_w',
+    'sentence',
+    'reason',
+  ],
+  rows: (f, name) =>
+    f.attributes.map(({ name: attribute, omnibus: o }) => [
+      attribute,
+      o.test,
+      o.n,
+      o.dropped,
+      o.recipes.map(name).join(' | '),
+      o.chiSquare,
+      o.df,
+      o.p,
+      o.kendallW,
+      o.sentence,
+      o.reason,
+    ]),
+}
+
+export const objective: ExportTable = {
+  header: ['measure', 'unit', 'attribute', 'n', 'rho', 'p', 'reason'],
+  rows: (f) => f.objective.map((o) => [o.measure, o.unit, o.name, o.n, o.rho, o.p, o.reason]),
+}

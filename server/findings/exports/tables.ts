@@ -1,0 +1,22 @@
+import type { FindingsTable } from '../../../shared/schemas/findings'
+import type { ExportTable } from './csv'
+import { means, objective, omnibus, pairs } from './attributes'
+import { preferences, scale } from './preferences'
+import { reliability, triangle } from './panel'
+import { aging } from './aging'
+
+/**
+ * Every table export by the name in its address. A new table is a name in FINDINGS_TABLES
+ * and one entry here; the compiler asks for the entry.
+ */
+export const EXPORT_TABLES: Record<FindingsTable, ExportTable> = {
+  means,
+  pairs,
+  omnibus,
+  preferences,
+  scale,
+  triangle,
+  reliability,
+  objective,
+  aging,
+}

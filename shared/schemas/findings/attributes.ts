@@ -1,0 +1,64 @@
+import type { FindingsReason, Interval } from './common'
+
+// Line-scale findings (attribute rating and play-test): means, recipe pairs, omnibus test.
+// Staff only: recipes appear by id and name here, so nothing in this file may ever reach a
+// player's screen.
+
+export interface RecipeMean {
+  recipe: number
+  name: string
+  n: number
+  mean: number | null
+  sd: number | null
+  ci: Interval | null
+  reason: FindingsReason
+}
+
+/** One recipe pair on one attribute; `difference` is second − first. */
+export interface PairRow {
+  first: number
+  second: number
+  n: number
+  dropped: number
+  difference: number | null
+  ci: Interval | null
+  t: number | null
+  df: number | null
+  p: number | null
+  holmP: number | null
+  wilcoxonV: number | null
+  wilcoxonP: number | null
+  wilcoxonMethod: 'exact' | 'normal' | null
+  wilcoxonHolmP: number | null
+  dz: number | null
+  rankBiserial: number | null
+  sentence: string
+  reason: FindingsReason
+}
+
+export interface OmnibusLine {
+  test: 'friedman'
+  n: number
+  dropped: number
+  recipes: number[]
+  chiSquare: number | null
+  df: number | null
+  p: number | null
+  kendallW: number | null
+  rankSums: number[]
+  sentence: string
+  reason: FindingsReason
+}
+
+export interface AttributeFindings {
+  /** The attribute's key in the session. */
+  attribute: string
+  name: string
+  /** End labels of the line scale, for axis captions. */
+  low: string
+  high: string
+  players: number
+  recipes: RecipeMean[]
+  pairs: PairRow[]
+  omnibus: OmnibusLine
+}

@@ -1,0 +1,35 @@
+import type { FindingsReason, Interval } from './common'
+
+// Findings about the panel: the odd-one-out count and each player's reliability.
+
+export interface TriangleFindings {
+  correct: number
+  n: number
+  p: number | null
+  minimumCorrect05: number | null
+  minimumCorrect01: number | null
+  pd: number | null
+  pdCi: Interval | null
+  /** Answers to hidden repeats, set aside: a repeat is not a new, independent judgement. */
+  repeatsSetAside: number
+  verdict: string
+  reason: FindingsReason
+}
+
+export interface PlayerReliabilityRow {
+  playerCode: string
+  duplicatePairs: number
+  misses: number
+  missShare: number | null
+  /** Spearman rho of the player's recipe means against the rest of the panel's. */
+  looSpearman: number | null
+  flagged: boolean
+  excluded: boolean
+  exclusionReason: string | null
+  reason: FindingsReason
+}
+
+export interface ReliabilityFindings {
+  rule: string
+  players: PlayerReliabilityRow[]
+}

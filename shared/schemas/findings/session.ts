@@ -1,0 +1,50 @@
+import type { Instrument, PlayerLevel } from '../../constants'
+import type { SessionFormat, SessionStatus } from '../sessions/design'
+import type { AgingFindings } from './aging'
+import type { AttributeFindings } from './attributes'
+import type { FindingsReason, RecipeRef } from './common'
+import type { ObjectiveRow } from './objective'
+import type { ReliabilityFindings, TriangleFindings } from './panel'
+import type { PreferenceFindings } from './preferences'
+
+// The findings of one session, as GET /api/findings/:id answers.
+// Staff only: recipes appear by id and name here, so nothing in this file may ever reach a
+// player's screen.
+
+export interface FindingsSummary {
+  invited: number
+  done: number
+  inProgress: number
+  excluded: number
+  answers: number
+  /** Stored answers that do not fit the session's plan or the answer format; left out. */
+  unreadable: number
+  /** done / invited, 0 when nobody is invited. */
+  completion: number
+}
+
+export interface SessionFindings {
+  session: {
+    id: number
+    name: string
+    format: SessionFormat
+    status: SessionStatus
+    timePointLabel: string | null
+  }
+  summary: FindingsSummary
+  filters: {
+    instrument: Instrument | null
+    level: PlayerLevel | null
+    available: { instruments: Instrument[]; levels: PlayerLevel[] }
+  }
+  /** Why the page has nothing to show (e.g. "not enough data: no answers yet"); null otherwise. */
+  reason: FindingsReason
+  recipes: RecipeRef[]
+  /** Line-scale findings (attribute rating and play-test); empty for other formats. */
+  attributes: AttributeFindings[]
+  preferences: PreferenceFindings | null
+  triangle: TriangleFindings | null
+  reliability: ReliabilityFindings
+  objective: ObjectiveRow[]
+  aging: AgingFindings | null
+}

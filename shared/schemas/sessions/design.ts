@@ -1,0 +1,119 @@
+import { z } from 'zod'
+import { LIMITS } from '../../constants'
+import { isoDate } from '../common'
+import { attributeSpec, DEFAULT_ATTRIBUTES } from './attributes'
+
+// What a session is: its format and status, and the design a developer sends to make or
+// change one.
+
+export const SESSION_FORMATS = ['pair', 'rating', 'triangle', 'playtest'] as const
+export type SessionFormat = (typeof SESSION_FORMATS)[number]
+
+export const SESSION_FORMAT_LABELS: Record<SessionFormat, string> = {
+  pair: 'Pair preference (paired comparison, ISO 5495)',
+  rating: 'Attribute rating (line scales, ISO 13299)',
+  triangle: 'Odd-one-out (triangle test, ISO 4120)',
+  playtest: 'Play-test of coded sets',
+}
+
+export const SESSION_STATUSES = ['draft', 'open', 'closed'] as const
+export type SessionStatus = (typeof SESSION_STATUSES)[number]
+
+/** One matched set: clips of the same excerpt, performer and instrument; only the string differs. */
+export const clipSetSpec = z.strictObject({
+  key: z.string().min(1).max(200),
+  clipIds: z.array(z.number().int().positive()).min(1).max(20),
+})
+export type ClipSetSpec = z.infer<typeof clipSetSpec>
+
+export const sessionDesignFields = {
+  name: z.string().trim().min(1, 'Required').max(LIMITS.nameMax),
+  purpose: z.string().trim().max(LIMITS.notesMax),
+  format: z.enum(SESSION_FORMATS, 'Choose a format'),
+  recipeIds: z
+    .array(z.number().int().positive())
+    .min(2, 'Choose at least two recipes: a comparison needs two')
+    .max(12, 'At most 12 recipes'),
+  clipSets: z.array(clipSetSpec).max(50),
+  attributes: z
+    .array(attributeSpec)
+    .max(12, 'At most 12 attributes')
+    .refine((a) => new Set(a.map((x) => x.key)).size === a.length, 'Two attributes share a key'),
+  duplicates: z.number().int().min(0, 'Cannot be negative').max(50),
+  allowNoPreference: z.boolean(),
+  instructions: z.string().trim().max(LIMITS.notesMax),
+  deadline: isoDate,
+  reminderDaysBefore: z.number().int().min(0).max(30).nullable(),
+}
+
+export const SESSION_LIMITS = {
+  recipesMax: 12,
+  clipSetsMax: 50,
+  attributesMax: 12,
+  duplicatesMax: 50,
+  timePointLabelMax: 40,
+  reminderDaysMax: 30,
+  invitePlayersMax: 500,
+} as const
+
+const timePointLabel = z
+  .string()
+  .trim()
+  .min(1, 'Required')
+  .max(SESSION_LIMITS.timePointLabelMax, `At most ${SESSION_LIMITS.timePointLabelMax} characters`)
+
+/** A new session: only what cannot be guessed is required. */
+export const sessionDesignBody = z
+  .strictObject({
+    ...sessionDesignFields,
+    purpose: sessionDesignFields.purpose.default(''),
+    clipSets: sessionDesignFields.clipSets.default([]),
+    attributes: sessionDesignFields.attributes.default(DEFAULT_ATTRIBUTES),
+    duplicates: sessionDesignFields.duplicates.default(0),
+    allowNoPreference: sessionDesignFields.allowNoPreference.default(false),
+    instructions: sessionDesignFields.instructions.default(''),
+    reminderDaysBefore: sessionDesignFields.reminderDaysBefore.default(2),
+    timePointLabel: timePointLabel.nullable().default(null),
+  })
+  .refine((b) => new Set(b.clipSets.map((s) => s.key)).size === b.clipSets.length, {
+    message: 'Two clip sets share a key',
+    path: ['clipSets'],
+  })
+export type SessionDesign = z.input<typeof sessionDesignBody>
+export type SessionDesignParsed = z.output<typeof sessionDesignBody>
+
+/** Any subset of the design; the server checks the merged whole. */
+export const updateSessionBody = z
+  .strictObject({
+    name: sessionDesignFields.name.optional(),
+    purpose: sessionDesignFields.purpose.optional(),
+    format: sessionDesignFields.format.optional(),
+    recipeIds: sessionDesignFields.recipeIds.optional(),
+    clipSets: sessionDesignFields.clipSets.optional(),
+    attributes: sessionDesignFields.attributes.optional(),
+    duplicates: sessionDesignFields.duplicates.optional(),
+    allowNoPreference: sessionDesignFields.allowNoPreference.optional(),
+    instructions: sessionDesignFields.instructions.optional(),
+    deadline: sessionDesignFields.deadline.optional(),
+    reminderDaysBefore: sessionDesignFields.reminderDaysBefore.optional(),
+    timePointLabel: timePointLabel.nullable().optional(),
+  })
+  .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
+export type UpdateSessionBody = z.infer<typeof updateSessionBody>
+
+/** Fields that shape the players' plans: frozen once anyone has answered. */
+export const LOCKED_DESIGN_FIELDS = [
+  'format',
+  'recipeIds',
+  'clipSets',
+  'attributes',
+  'duplicates',
+  'allowNoPreference',
+] as const
+
+export const timePointBody = z.strictObject({
+  label: timePointLabel,
+  deadline: isoDate,
+  inviteSamePlayers: z.boolean('Say whether to invite the same players').default(false),
+})
+export type TimePointBody = z.input<typeof timePointBody>

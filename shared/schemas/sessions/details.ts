@@ -1,0 +1,64 @@
+import type { AttributeSpec } from './attributes'
+import type { ClipSetSpec, SessionFormat, SessionStatus } from './design'
+
+// Sessions as staff see them: the list and one session with its resolved design.
+
+export interface SessionSummary {
+  id: number
+  name: string
+  format: SessionFormat
+  status: SessionStatus
+  deadline: string
+  recipeCount: number
+  invitedCount: number
+  doneCount: number
+  timePointLabel: string | null
+  parentSessionId: number | null
+  createdBy: string | null
+  createdAt: string
+}
+
+export interface ResolvedClip {
+  id: number
+  recipeId: number
+  recipeName: string
+  originalName: string
+}
+
+/** A matched set as the designer shows it: what was recorded, and by whom. */
+export interface ResolvedClipSet extends ClipSetSpec {
+  excerptName: string
+  performerCode: string
+  instrumentCode: string
+  clips: ResolvedClip[]
+}
+
+export interface TimePoint {
+  id: number
+  label: string | null
+  status: SessionStatus
+}
+
+export interface SessionDetail extends SessionSummary {
+  purpose: string
+  recipeIds: number[]
+  /** The design's sets (key, clipIds) with what each holds. */
+  clipSets: ResolvedClipSet[]
+  attributes: AttributeSpec[]
+  duplicates: number
+  allowNoPreference: boolean
+  instructions: string
+  reminderDaysBefore: number | null
+  seed: string
+  /** Somebody has answered: the fields in LOCKED_DESIGN_FIELDS can no longer change. */
+  locked: boolean
+  answersCount: number
+  /** Trials each player gets, hidden duplicates included. */
+  trialCount: number
+  warnings: string[]
+  recipes: { id: number; name: string }[]
+  /** The first session and every later time point, in order. */
+  timePoints: TimePoint[]
+  openedAt: string | null
+  closedAt: string | null
+}

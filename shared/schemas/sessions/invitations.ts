@@ -1,0 +1,71 @@
+import { z } from 'zod'
+import { SESSION_LIMITS } from './design'
+
+// Inviting players, following their progress, and the play-test label sheet.
+
+export const INVITATION_STATUSES = [
+  'invited',
+  'opened',
+  'in_progress',
+  'done',
+  'expired',
+  'revoked',
+] as const
+export type InvitationStatus = (typeof INVITATION_STATUSES)[number]
+
+export const inviteBody = z.strictObject({
+  playerIds: z
+    .array(z.number().int().positive())
+    .min(1, 'Choose at least one player')
+    .max(SESSION_LIMITS.invitePlayersMax, `At most ${SESSION_LIMITS.invitePlayersMax} at once`),
+})
+export type InviteBody = z.infer<typeof inviteBody>
+
+export interface InvitationRow {
+  id: number
+  sessionId: number
+  playerId: number
+  playerCode: string
+  playerName: string | null
+  playerEmail: string | null
+  status: InvitationStatus
+  invitedAt: string
+  openedAt: string | null
+  startedAt: string | null
+  completedAt: string | null
+  revokedAt: string | null
+  lastRemindedAt: string | null
+  remindersSent: number
+  answered: number
+  trialCount: number
+}
+
+export interface InviteResult {
+  created: number
+  existing: number
+}
+
+export interface LabelSet {
+  code: number
+  /** Order in which the player fits and plays the sets, from 1. */
+  position: number
+  qrSvg: string
+  url: string
+}
+
+/** Staff only: which recipe goes into which coded envelope. */
+export interface PackingLine {
+  code: number
+  position: number
+  recipeName: string
+}
+
+export interface LabelSheet {
+  players: {
+    playerCode: string
+    playerName: string | null
+    sets: LabelSet[]
+    packing: PackingLine[]
+  }[]
+  caution: string
+}
