@@ -112,5 +112,9 @@ export const WINDING_PROFILES = ['round', 'flat'] as const
 export const DAMPING_KINDS = ['none', 'compound', 'fibre layer', 'other'] as const
 export type DampingKind = (typeof DAMPING_KINDS)[number]
 
+/** Lists hide archived recipes and clips by default; they can be shown beside or alone. */
+export const ARCHIVED_FILTERS = ['hide', 'include', 'only'] as const
+export type ArchivedFilter = (typeof ARCHIVED_FILTERS)[number]
+
 export const RECIPE_STATUSES = ['draft', 'prototype', 'retired'] as const
 export type RecipeStatus = (typeof RECIPE_STATUSES)[number]

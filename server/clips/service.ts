@@ -31,6 +31,7 @@ import {
 } from './renditions'
 import { resolveClipFields, type ResolvedFields } from './fields'
 import { clipQuery, toClip, toClipDetail, type ClipRow } from './rows'
+import { assertClipChangeAllowed, assertClipDeletable } from './archive'
 import type { Clip, ClipDetail, ClipUploadFields, ListClipsQuery } from '../../shared/schemas/clips'
 
 /** What clip storage needs; the demo seed builds it without an HTTP app. */
@@ -311,6 +312,7 @@ export function updateClip(
       (k) => after[k] !== before[k],
     )
     if (changed.length === 0) return getClip(ctx.knex, id)
+    await assertClipChangeAllowed(ctx.knex, id, changed)
 
     const remeasured =
       after.kind !== before.kind
@@ -353,12 +355,16 @@ export function updateClip(
   })
 }
 
-/** Deletes a clip with both its files; the rest of its set is re-balanced. */
+/**
+ * Deletes a clip no session uses, with both its files; the rest of its set is re-balanced.
+ * A clip a session uses is archived instead (see archive.ts).
+ */
 export function deleteClip(ctx: AppContext, id: number, actor: Actor): Promise<{ id: number }> {
   const deps = clipDeps(ctx)
   return serialised(ctx.knex, async () => {
     const row: StoredRow | undefined = await ctx.knex('clips').where({ id }).first()
     if (!row) throw notFound('Clip')
+    await assertClipDeletable(ctx.knex, id)
     await withBalancedSets(deps, [keyOf(fieldsOfRow(row))], { excludeIds: [id] }, async (trx) => {
       await trx('clips').where({ id }).delete()
       await recordAudit(trx, deps.clock.now(), actor, {

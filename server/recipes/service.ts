@@ -4,6 +4,7 @@ import { conflict, notFound, validationFailed } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { whereContains } from '../db/like'
 import { TUNINGS } from '../../shared/constants'
+import { assertRecipeChangeAllowed } from './archive'
 import type {
   CreateRecipeBody,
   ListRecipesQuery,
@@ -30,6 +31,7 @@ interface RecipeRow {
   parent_name: string | null
   status: Recipe['status']
   notes: string
+  archived_at: string | null
   created_by_email: string | null
   created_at: string
   updated_at: string
@@ -53,6 +55,7 @@ const toRecipe = (r: RecipeRow): Recipe => ({
   parentName: r.parent_name,
   status: r.status,
   notes: r.notes,
+  archivedAt: r.archived_at,
   createdBy: r.created_by_email,
   createdAt: r.created_at,
   updatedAt: r.updated_at,
@@ -68,6 +71,8 @@ function baseQuery(knex: Knex) {
 export async function listRecipes(knex: Knex, query: ListRecipesQuery): Promise<Recipe[]> {
   const q = baseQuery(knex)
   if (query.status !== 'all') q.where('r.status', query.status)
+  if (query.archived === 'hide') q.whereNull('r.archived_at')
+  if (query.archived === 'only') q.whereNotNull('r.archived_at')
   if (query.instrument) q.where('r.instrument', query.instrument)
   if (query.stringName) q.where('r.string_name', query.stringName)
   if (query.core) q.where('r.core', query.core)
@@ -195,6 +200,13 @@ export async function updateRecipe(
       await checkUnique(trx, body.name ?? row.name, body.version ?? row.version, id)
     if (body.parentId !== undefined) await checkParent(trx, id, body.parentId)
     const changes = columns(body as Partial<NewRecipe>)
+    const changed = Object.entries(body as Record<string, unknown>)
+      .filter(([field, value]) => {
+        const column = Object.keys(columns({ [field]: value } as Partial<NewRecipe>))[0]
+        return column !== undefined && String(row[column]) !== String(changes[column])
+      })
+      .map(([field]) => field)
+    await assertRecipeChangeAllowed(trx, id, changed)
     await trx('recipes')
       .where({ id })
       .update({ ...changes, updated_at: ctx.clock.now().toISOString() })

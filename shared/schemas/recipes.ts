@@ -3,6 +3,7 @@ import {
   CORES,
   DAMPING_KINDS,
   INSTRUMENTS,
+  ARCHIVED_FILTERS,
   LIMITS,
   RECIPE_STATUSES,
   TUNINGS,
@@ -75,26 +76,38 @@ export const createRecipeBody = z
   .superRefine(stringOfInstrument)
 export type CreateRecipeBody = z.input<typeof createRecipeBody>
 
+const changeFields = {
+  name: recipeFields.name.optional(),
+  instrument: recipeFields.instrument.optional(),
+  stringName: recipeFields.stringName.optional(),
+  core: recipeFields.core.optional(),
+  windings: recipeFields.windings.optional(),
+  dampingKind: recipeFields.dampingKind.optional(),
+  dampingGrade: recipeFields.dampingGrade.optional(),
+  dampingNotes: recipeFields.dampingNotes.optional(),
+  gaugeMm: recipeFields.gaugeMm.optional(),
+  tensionN: recipeFields.tensionN.optional(),
+  vibratingLengthMm: recipeFields.vibratingLengthMm.optional(),
+  status: recipeFields.status.optional(),
+  notes: recipeFields.notes.optional(),
+}
 export const updateRecipeBody = z
   .strictObject({
-    name: recipeFields.name.optional(),
-    instrument: recipeFields.instrument.optional(),
-    stringName: recipeFields.stringName.optional(),
-    core: recipeFields.core.optional(),
-    windings: recipeFields.windings.optional(),
-    dampingKind: recipeFields.dampingKind.optional(),
-    dampingGrade: recipeFields.dampingGrade.optional(),
-    dampingNotes: recipeFields.dampingNotes.optional(),
-    gaugeMm: recipeFields.gaugeMm.optional(),
-    tensionN: recipeFields.tensionN.optional(),
-    vibratingLengthMm: recipeFields.vibratingLengthMm.optional(),
+    ...changeFields,
     version: recipeFields.version.optional(),
     parentId: recipeFields.parentId.optional(),
-    status: recipeFields.status.optional(),
-    notes: recipeFields.notes.optional(),
   })
   .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
 export type UpdateRecipeBody = z.infer<typeof updateRecipeBody>
+
+/**
+ * POST /api/recipes/:id/versions: what the new version changes; everything else is copied, it
+ * gets the next version number and the recipe as its parent.
+ */
+export const recipeVersionBody = z
+  .strictObject(changeFields)
+  .refine((b) => Object.keys(b).length > 0, 'Say what the new version changes')
+export type RecipeVersionBody = z.infer<typeof recipeVersionBody>
 
 export const listRecipesQuery = z.object({
   q: z.string().trim().max(LIMITS.searchMax).optional(),
@@ -103,6 +116,8 @@ export const listRecipesQuery = z.object({
   core: z.enum(CORES).optional(),
   dampingKind: z.enum(DAMPING_KINDS).optional(),
   status: z.enum([...RECIPE_STATUSES, 'all']).default('all'),
+  /** Archived recipes are hidden unless asked for. */
+  archived: z.enum(ARCHIVED_FILTERS).default('hide'),
 })
 export type ListRecipesQuery = z.infer<typeof listRecipesQuery>
 
@@ -126,6 +141,8 @@ export interface Recipe {
   parentName: string | null
   status: (typeof RECIPE_STATUSES)[number]
   notes: string
+  /** Set when archived: hidden from lists and pickers, kept for the sessions that use it. */
+  archivedAt: string | null
   createdBy: string | null
   createdAt: string
   updatedAt: string
