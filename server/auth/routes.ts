@@ -1,7 +1,6 @@
 import { rateLimit } from 'express-rate-limit'
 import type { AppContext } from '../context'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf, clearSessionCookie, setSessionCookie } from '../http/authenticate'
 import { inspectLink, requestPasswordReset, setPasswordWithLink, signIn, toMe } from './accounts'
 import { recordAudit } from '../audit/service'
@@ -24,19 +23,19 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
   const signInLimiter = limit(true)
   const linkLimiter = limit(false)
   return [
-    {
+    route({
       method: 'post',
       path: '/login',
       roles: 'public',
       before: [signInLimiter],
-      handler: async (req, res) => {
-        const body = parse(loginBody, req.body)
+      body: loginBody,
+      handler: async (req, res, { body }) => {
         const user = await signIn(ctx, body.email, body.password, req.ip ?? null)
         setSessionCookie(ctx, res, user)
         res.json({ user: toMe(user) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/logout',
       roles: 'public',
@@ -50,8 +49,8 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
         clearSessionCookie(ctx, res)
         res.status(204).end()
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/me',
       // Open to all: "nobody is signed in" is an answer the sign-in page needs, not an error.
@@ -62,40 +61,40 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
           features: { mailbox: Boolean(ctx.mailbox) && ctx.config.env !== 'production' },
         })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/forgot',
       roles: 'public',
       before: [linkLimiter],
-      handler: async (req, res) => {
-        const body = parse(forgotBody, req.body)
+      body: forgotBody,
+      handler: async (req, res, { body }) => {
         await requestPasswordReset(ctx, body.email, actorOf(req))
         res.json({
           message: 'If that address belongs to an active account, a reset link is on its way.',
         })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/link',
       roles: 'public',
-      handler: async (req, res) => {
-        const { token } = parse(tokenQuery, req.query)
-        res.json(await inspectLink(ctx, token))
+      query: tokenQuery,
+      handler: async (_req, res, { query }) => {
+        res.json(await inspectLink(ctx, query.token))
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/set-password',
       roles: 'public',
       before: [linkLimiter],
-      handler: async (req, res) => {
-        const body = parse(resetBody, req.body)
+      body: resetBody,
+      handler: async (req, res, { body }) => {
         const user = await setPasswordWithLink(ctx, body.token, body.password, req.ip ?? null)
         setSessionCookie(ctx, res, user)
         res.json({ user: toMe(user) })
       },
-    },
+    }),
   ]
 }

@@ -1,10 +1,10 @@
 import { readFile } from 'node:fs/promises'
 import type { Response } from 'express'
 import type { AppContext } from '../context'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { discardTempFiles, filesOf, tempUpload } from './upload'
+import { discardUpload, requireFile } from './uploadGuards'
 import { badRequest, notFound } from '../errors'
 import { clipFiles, deleteClip, getClip, listClips, updateClip, uploadClip } from './service'
 import { importClipManifest } from './manifestImport'
@@ -58,40 +58,41 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
   })
 
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: STAFF,
-      handler: async (req, res) => {
-        const query = parse(listClipsQuery, req.query)
+      query: listClipsQuery,
+      handler: async (_req, res, { query }) => {
         res.json({ clips: await listClips(ctx.knex, query) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/matched-sets',
       roles: STAFF,
       handler: async (_req, res) => {
         res.json({ sections: await matchedSets(ctx.knex) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/',
       roles: EDITORS,
-      before: [single],
-      handler: async (req, res) => {
+      // The multipart fields are the body, so they are checked after the upload and its file.
+      before: [single, requireFile('file', 'Attach the recording in the field "file"')],
+      body: clipUploadBody,
+      onInvalid: { body: discardUpload },
+      handler: async (req, res, { body }) => {
         try {
           const [file] = filesOf(req, 'file')
-          if (!file) throw badRequest('Attach the recording in the field "file"')
-          const body = parse(clipUploadBody, req.body)
           res.status(201).json({ clip: await uploadClip(ctx, file, body, actorOf(req)) })
         } finally {
           discardTempFiles(res)
         }
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/batch',
       roles: EDITORS,
@@ -110,55 +111,55 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
           discardTempFiles(res)
         }
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ clip: await getClip(ctx.knex, id) })
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json({ clip: await getClip(ctx.knex, params.id) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/:id',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updateClipBody, req.body)
-        res.json({ clip: await updateClip(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updateClipBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ clip: await updateClip(ctx, params.id, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'delete',
       path: '/:id',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json(await deleteClip(ctx, id, actorOf(req)))
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json(await deleteClip(ctx, params.id, actorOf(req)))
       },
-    },
-    {
+    }),
+    route({
       // The blind rendition; players will reach renditions through session codes, not here.
       method: 'get',
       path: '/:id/audio',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const { rendition } = await clipFiles(ctx, id)
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        const { rendition } = await clipFiles(ctx, params.id)
         await sendMedia(res, rendition, { type: 'audio/wav' })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/original',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const { original, originalName } = await clipFiles(ctx, id)
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        const { original, originalName } = await clipFiles(ctx, params.id)
         await sendMedia(res, original, { download: originalName })
       },
-    },
+    }),
   ]
 }

@@ -1,7 +1,6 @@
 import type { AppContext } from '../context'
 import { EDITORS, STAFF } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { createExcerpt, listExcerpts, updateExcerpt } from './service'
 import { createExcerptBody, updateExcerptBody } from '../../shared/schemas/clips'
@@ -9,32 +8,32 @@ import { idParam } from '../../shared/schemas/common'
 
 export function excerptRoutes(ctx: AppContext): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: STAFF,
       handler: async (_req, res) => {
         res.json({ excerpts: await listExcerpts(ctx.knex) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const body = parse(createExcerptBody, req.body)
+      body: createExcerptBody,
+      handler: async (req, res, { body }) => {
         res.status(201).json({ excerpt: await createExcerpt(ctx, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/:id',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updateExcerptBody, req.body)
-        res.json({ excerpt: await updateExcerpt(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updateExcerptBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ excerpt: await updateExcerpt(ctx, params.id, body, actorOf(req)) })
       },
-    },
+    }),
   ]
 }

@@ -1,8 +1,7 @@
 import type { Request, Response } from 'express'
 import type { AppContext } from '../context'
 import { EXCLUDERS, STAFF } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { unauthenticated } from '../errors'
 import { computeSessionFindings, getFindings, readableSession, type Viewer } from './service'
@@ -35,44 +34,44 @@ function sendCsv(res: Response, fileName: string, body: string) {
 export function findingsRoutes(ctx: AppContext): RouteDef[] {
   const recomputed = (id: number, req: Request) => getFindings(ctx.knex, id, viewerOf(req))
   return [
-    {
+    route({
       method: 'get',
       path: '/:id',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const group = parse(findingsQuery, req.query)
-        res.json(await getFindings(ctx.knex, id, viewerOf(req), group))
+      params: idParam,
+      query: findingsQuery,
+      handler: async (req, res, { params, query }) => {
+        res.json(await getFindings(ctx.knex, params.id, viewerOf(req), query))
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/exclusions',
       roles: EXCLUDERS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(excludePlayerBody, req.body)
-        await excludePlayer(ctx, id, body, actorOf(req))
-        res.json(await recomputed(id, req))
+      params: idParam,
+      body: excludePlayerBody,
+      handler: async (req, res, { params, body }) => {
+        await excludePlayer(ctx, params.id, body, actorOf(req))
+        res.json(await recomputed(params.id, req))
       },
-    },
-    {
+    }),
+    route({
       method: 'delete',
       path: '/:id/exclusions/:playerCode',
       roles: EXCLUDERS,
-      handler: async (req, res) => {
-        const { id, playerCode } = parse(playerCodeParam, req.params)
-        const body = parse(includePlayerBody, req.body)
+      params: playerCodeParam,
+      body: includePlayerBody,
+      handler: async (req, res, { params: { id, playerCode }, body }) => {
         await includePlayer(ctx, id, playerCode, body, actorOf(req))
         res.json(await recomputed(id, req))
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/export/answers.csv',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
+      params: idParam,
+      handler: async (req, res, { params: { id } }) => {
         await readableSession(ctx.knex, id, viewerOf(req))
         sendCsv(
           res,
@@ -80,18 +79,18 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
           answersCsv(await loadFindingsData(ctx.knex, id)),
         )
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/export/:table.csv',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id, table } = parse(exportTableParam, req.params)
-        const group = parse(findingsQuery, req.query)
+      params: exportTableParam,
+      query: findingsQuery,
+      handler: async (req, res, { params: { id, table }, query }) => {
         await readableSession(ctx.knex, id, viewerOf(req))
-        const { findings } = await computeSessionFindings(ctx.knex, id, group)
+        const { findings } = await computeSessionFindings(ctx.knex, id, query)
         sendCsv(res, exportFileName(id, table), tableCsv(findings, table))
       },
-    },
+    }),
   ]
 }

@@ -5,22 +5,66 @@ import {
   type RequestHandler,
   type Response,
 } from 'express'
+import type { z } from 'zod'
 import type { Role } from '../../shared/constants'
-import { forbidden, unauthenticated } from '../errors'
+import { forbidden, unauthenticated, type AppError } from '../errors'
+import { withInput } from './validate'
 
 export type Method = 'get' | 'post' | 'patch' | 'put' | 'delete'
 
+/** The parts of a request a route may declare a schema for, in the order they are checked. */
+export const INPUT_PARTS = ['params', 'query', 'body'] as const
+export type InputPart = (typeof INPUT_PARTS)[number]
+
+/** A part's schema, or nothing when the route does not read that part. */
+export type PartSchema = z.ZodType | undefined
+type Parsed<S extends PartSchema> = S extends z.ZodType ? z.output<S> : undefined
+
+/** What a handler receives: each declared part as its schema's output, the others undefined. */
+export interface RouteInput<
+  P extends PartSchema = PartSchema,
+  Q extends PartSchema = PartSchema,
+  B extends PartSchema = PartSchema,
+> {
+  params: Parsed<P>
+  query: Parsed<Q>
+  body: Parsed<B>
+}
+
 /**
- * One line of a route table. `roles` is required: a route is either open to everyone
- * ('public') or lists who may call it. The role test walks these tables.
+ * The error a route answers with instead of the 422 when one part fails its schema. It may also
+ * release what `before` took (an upload's temp files), since the handler will not run.
  */
-export interface RouteDef {
+export type OnInvalid = (failure: AppError, req: Request, res: Response) => Error
+
+export interface RouteSpec<P extends PartSchema, Q extends PartSchema, B extends PartSchema> {
   method: Method
   path: string
   roles: readonly Role[] | 'public'
-  /** Extra middleware (uploads, rate limits) run after the role check. */
+  /** Extra middleware (uploads, rate limits) run after the role check and before validation. */
   before?: RequestHandler[]
-  handler: (req: Request, res: Response) => unknown
+  params?: P
+  query?: Q
+  body?: B
+  onInvalid?: Partial<Record<InputPart, OnInvalid>>
+  handler: (req: Request, res: Response, input: RouteInput<P, Q, B>) => unknown
+}
+
+/**
+ * One line of a route table. `roles` is required: a route is either open to everyone
+ * ('public') or lists who may call it. The role test walks these tables and their schemas.
+ */
+export type RouteDef = RouteSpec<PartSchema, PartSchema, PartSchema>
+
+/** A route table entry whose handler gets its declared input parsed and typed. */
+export function route<
+  P extends PartSchema = undefined,
+  Q extends PartSchema = undefined,
+  B extends PartSchema = undefined,
+>(spec: RouteSpec<P, Q, B>): RouteDef {
+  // The validate step hands the handler exactly what these schemas produced, so the
+  // narrower handler type holds at run time.
+  return spec as unknown as RouteDef
 }
 
 export function requireRole(roles: RouteDef['roles']): RequestHandler {
@@ -32,13 +76,14 @@ export function requireRole(roles: RouteDef['roles']): RequestHandler {
   }
 }
 
+/** Role check, then `before`, then the validate step and the handler in one synchronous call. */
 export function buildRouter(defs: RouteDef[]): Router {
   const router = Router()
   for (const def of defs) {
     if (def.roles !== 'public' && (!Array.isArray(def.roles) || def.roles.length === 0)) {
       throw new Error(`${def.method.toUpperCase()} ${def.path} declares no roles`)
     }
-    router[def.method](def.path, requireRole(def.roles), ...(def.before ?? []), def.handler)
+    router[def.method](def.path, requireRole(def.roles), ...(def.before ?? []), withInput(def))
   }
   return router
 }

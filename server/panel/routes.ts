@@ -1,7 +1,6 @@
 import multer from 'multer'
 import type { AppContext } from '../context'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import {
   createPlayer,
@@ -25,61 +24,62 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
   }).single('file')
 
   return [
-    {
+    route({
       method: 'get',
       path: '/summary',
       roles: STAFF,
       handler: async (_req, res) => {
         res.json(await panelSummary(ctx.knex))
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/players',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const query = parse(listPlayersQuery, req.query)
+      query: listPlayersQuery,
+      handler: async (_req, res, { query }) => {
         res.json({ players: await listPlayers(ctx.knex, query) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/players/:id',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ player: await getPlayer(ctx.knex, id) })
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json({ player: await getPlayer(ctx.knex, params.id) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/players',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const body = parse(createPlayerBody, req.body)
+      body: createPlayerBody,
+      handler: async (req, res, { body }) => {
         res.status(201).json({ player: await createPlayer(ctx, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/players/:id',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updatePlayerBody, req.body)
-        res.json({ player: await updatePlayer(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updatePlayerBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ player: await updatePlayer(ctx, params.id, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'delete',
       path: '/players/:id',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ player: await erasePlayer(ctx, id, actorOf(req)) })
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ player: await erasePlayer(ctx, params.id, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
+      // The CSV is the upload itself; its rows are checked by the import, not by a body schema.
       method: 'post',
       path: '/import',
       roles: ADMIN,
@@ -90,6 +90,6 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
         if (text.includes('\u0000')) throw badRequest('This is not a text CSV file')
         res.status(201).json(await importPanelCsv(ctx, text, actorOf(req)))
       },
-    },
+    }),
   ]
 }

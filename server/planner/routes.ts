@@ -1,19 +1,19 @@
 import type { AppContext } from '../context'
 import { STAFF } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { plannerNumbers } from './service'
 import { plannerQuery } from '../../shared/schemas/sessions'
 
 export function plannerRoutes(ctx: AppContext): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: STAFF,
-      handler: async (req, res) => {
-        res.json(await plannerNumbers(ctx.knex, parse(plannerQuery, req.query)))
+      query: plannerQuery,
+      handler: async (_req, res, { query }) => {
+        res.json(await plannerNumbers(ctx.knex, query))
       },
-    },
+    }),
   ]
 }

@@ -1,7 +1,6 @@
 import type { AppContext } from '../context'
 import { EDITORS, STAFF } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { createRecipe, getRecipe, listRecipes, updateRecipe } from './service'
 import { createRecipeBody, listRecipesQuery, updateRecipeBody } from '../../shared/schemas/recipes'
@@ -9,41 +8,42 @@ import { idParam } from '../../shared/schemas/common'
 
 export function recipeRoutes(ctx: AppContext): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: STAFF,
-      handler: async (req, res) => {
-        res.json({ recipes: await listRecipes(ctx.knex, parse(listRecipesQuery, req.query)) })
+      query: listRecipesQuery,
+      handler: async (_req, res, { query }) => {
+        res.json({ recipes: await listRecipes(ctx.knex, query) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ recipe: await getRecipe(ctx.knex, id) })
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json({ recipe: await getRecipe(ctx.knex, params.id) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const body = parse(createRecipeBody, req.body)
+      body: createRecipeBody,
+      handler: async (req, res, { body }) => {
         res.status(201).json({ recipe: await createRecipe(ctx, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/:id',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updateRecipeBody, req.body)
-        res.json({ recipe: await updateRecipe(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updateRecipeBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ recipe: await updateRecipe(ctx, params.id, body, actorOf(req)) })
       },
-    },
+    }),
   ]
 }

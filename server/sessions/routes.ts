@@ -1,7 +1,6 @@
 import type { AppContext } from '../context'
 import { EDITORS, STAFF } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import {
   closeSession,
@@ -28,126 +27,126 @@ import {
 export function sessionRoutes(ctx: AppContext): RouteDef[] {
   const now = () => ctx.clock.now()
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: STAFF,
       handler: async (_req, res) => {
         res.json({ sessions: await listSessions(ctx.knex) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const body = parse(sessionDesignBody, req.body)
+      body: sessionDesignBody,
+      handler: async (req, res, { body }) => {
         res.status(201).json({ session: await createSession(ctx, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ session: await getSession(ctx.knex, id, now()) })
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json({ session: await getSession(ctx.knex, params.id, now()) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/:id',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updateSessionBody, req.body)
-        res.json({ session: await updateSession(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updateSessionBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ session: await updateSession(ctx, params.id, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/open',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ session: await openSession(ctx, id, actorOf(req)) })
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ session: await openSession(ctx, params.id, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/close',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ session: await closeSession(ctx, id, actorOf(req)) })
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ session: await closeSession(ctx, params.id, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/preview',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const { player } = parse(previewQuery, req.query)
-        const session = await loadSession(ctx.knex, id)
+      params: idParam,
+      query: previewQuery,
+      handler: async (_req, res, { params, query }) => {
+        const session = await loadSession(ctx.knex, params.id)
         // Staff may hear the renditions under their own route; nothing is recorded.
         const plan = await sessionPreview(
           ctx.knex,
           session,
-          player - 1,
+          query.player - 1,
           (clipId) => `/api/clips/${clipId}/audio`,
         )
         res.json({ plan })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/time-points',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(timePointBody, req.body)
-        res.status(201).json({ session: await addTimePoint(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: timePointBody,
+      handler: async (req, res, { params, body }) => {
+        res.status(201).json({ session: await addTimePoint(ctx, params.id, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/invitations',
       roles: STAFF,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
+      params: idParam,
+      handler: async (req, res, { params }) => {
         // Analysts work with player codes; names and addresses stay with those who send mail.
         const personal = req.user?.role !== 'analyst'
-        res.json({ invitations: await listInvitations(ctx.knex, id, now(), personal) })
+        res.json({ invitations: await listInvitations(ctx.knex, params.id, now(), personal) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/invitations',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const { playerIds } = parse(inviteBody, req.body)
-        res.json(await invitePlayers(ctx, id, playerIds, actorOf(req)))
+      params: idParam,
+      body: inviteBody,
+      handler: async (req, res, { params, body }) => {
+        res.json(await invitePlayers(ctx, params.id, body.playerIds, actorOf(req)))
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/remind',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json({ reminded: await remindSession(ctx, id, actorOf(req)) })
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ reminded: await remindSession(ctx, params.id, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/:id/labels',
       roles: EDITORS,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        res.json(await labelSheet(ctx, id))
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json(await labelSheet(ctx, params.id))
       },
-    },
+    }),
   ]
 }

@@ -1,7 +1,6 @@
 import type { AppContext } from '../context'
 import { ADMIN } from '../../shared/constants'
-import type { RouteDef } from '../http/routeTable'
-import { parse } from '../http/validate'
+import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { inviteStaff, listStaff, resendStaffInvite, updateStaff } from './service'
 import { inviteUserBody, updateUserBody } from '../../shared/schemas/users'
@@ -9,42 +8,42 @@ import { idParam } from '../../shared/schemas/common'
 
 export function staffRoutes(ctx: AppContext): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/',
       roles: ADMIN,
       handler: async (_req, res) => {
         res.json({ users: await listStaff(ctx) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const body = parse(inviteUserBody, req.body)
+      body: inviteUserBody,
+      handler: async (req, res, { body }) => {
         res.status(201).json({ user: await inviteStaff(ctx, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/:id',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        const body = parse(updateUserBody, req.body)
-        res.json({ user: await updateStaff(ctx, id, body, actorOf(req)) })
+      params: idParam,
+      body: updateUserBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ user: await updateStaff(ctx, params.id, body, actorOf(req)) })
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/:id/resend-invite',
       roles: ADMIN,
-      handler: async (req, res) => {
-        const { id } = parse(idParam, req.params)
-        await resendStaffInvite(ctx, id, actorOf(req))
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        await resendStaffInvite(ctx, params.id, actorOf(req))
         res.status(204).end()
       },
-    },
+    }),
   ]
 }

@@ -1,8 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
+import { z } from 'zod'
 import { ROLES, STAFF_ROLES, type StaffRole } from '../../shared/constants'
 import type { MountedTable } from '../../server/app'
-import type { RouteDef } from '../../server/http/routeTable'
+import { INPUT_PARTS, type RouteDef } from '../../server/http/routeTable'
 import { buildApp, memoryMailbox, signInAs, type Agent, type TestApp } from './helpers'
 
 // The app is built at collection time so the table of cases is known before tests are declared.
@@ -13,6 +14,7 @@ interface Case {
   method: RouteDef['method']
   path: string
   roles: RouteDef['roles']
+  def: RouteDef
 }
 
 const cases: Case[] = tables.flatMap((table) =>
@@ -20,6 +22,7 @@ const cases: Case[] = tables.flatMap((table) =>
     method: r.method,
     path: (table.prefix + (r.path === '/' ? '' : r.path)).replace(/\/$/, ''),
     roles: r.roles,
+    def: r,
   })),
 )
 const guarded = cases.filter((c) => c.roles !== 'public')
@@ -87,6 +90,65 @@ describe('route tables', () => {
         'put /api/player/answers/:trialIndex',
       ].sort(),
     )
+  })
+})
+
+/** Writes that send no JSON body, each with why it needs no body schema. */
+const NO_BODY: Record<string, string> = {
+  'post /api/auth/logout': 'signs out whoever the cookie names; nothing is sent',
+  'post /api/clips/batch': 'multipart: a manifest and its files, checked row by row by the import',
+  'post /api/panel/import': 'multipart: one CSV file, checked row by row by the import',
+  'post /api/staff/:id/resend-invite': 'an action on the user named in the path',
+  'post /api/mail/outbox/:id/retry': 'an action on the mail named in the path',
+  'post /api/sessions/:id/open': 'an action on the session named in the path',
+  'post /api/sessions/:id/close': 'an action on the session named in the path',
+  'post /api/sessions/:id/remind': 'an action on the session named in the path',
+  'post /api/invitations/:id/resend': 'an action on the invitation named in the path',
+  'post /api/invitations/:id/remind': 'an action on the invitation named in the path',
+  'post /api/invitations/:id/revoke': 'an action on the invitation named in the path',
+}
+
+const label = (c: Case) => `${c.method} ${c.path}`
+const pathParams = (path: string) => [...path.matchAll(/:(\w+)/g)].map((m) => m[1]).sort()
+
+describe('route input', () => {
+  it('declares a params schema naming exactly the parameters of the path', () => {
+    for (const c of cases) {
+      const names = pathParams(c.path)
+      if (names.length === 0) {
+        expect(c.def.params, label(c)).toBeUndefined()
+        continue
+      }
+      expect(c.def.params, label(c)).toBeInstanceOf(z.ZodObject)
+      const shape = (c.def.params as z.ZodObject).shape
+      expect(Object.keys(shape).sort(), label(c)).toEqual(names)
+    }
+  })
+
+  it('declares a body for every post, put and patch but the listed ones', () => {
+    const writes = cases.filter((c) => ['post', 'put', 'patch'].includes(c.method))
+    for (const c of writes) {
+      if (label(c) in NO_BODY) expect(c.def.body, label(c)).toBeUndefined()
+      else expect(c.def.body, label(c)).toBeInstanceOf(z.ZodType)
+    }
+    // The list stays true: every exception is a route that exists.
+    expect(Object.keys(NO_BODY).filter((k) => !writes.some((c) => label(c) === k))).toEqual([])
+  })
+
+  it('reads no body on a GET, and maps failures only for parts it declares', () => {
+    for (const c of cases) {
+      if (c.method === 'get') expect(c.def.body, label(c)).toBeUndefined()
+      for (const part of INPUT_PARTS)
+        if (c.def.onInvalid?.[part]) expect(c.def[part], `${label(c)} ${part}`).toBeDefined()
+    }
+  })
+
+  it('answers a player GET without a token with invalid_token, as a bad link', () => {
+    const tokenGets = cases.filter((c) => c.path.startsWith('/api/player/') && c.def.query)
+    expect(tokenGets.map(label).sort()).toEqual(
+      ['get /api/player/invitation', 'get /api/player/plan', 'get /api/player/state'].sort(),
+    )
+    for (const c of tokenGets) expect(c.def.onInvalid?.query, label(c)).toBeTypeOf('function')
   })
 })
 
