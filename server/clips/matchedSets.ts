@@ -22,9 +22,12 @@ interface SetRow {
  * complete when it holds a clip of every one of those recipes.
  */
 export async function matchedSets(knex: Knex): Promise<MatchedSetSection[]> {
+  // Archived clips and recipes are kept for the sessions that use them, not offered again.
   const rows: SetRow[] = await knex('clips as c')
     .join('recipes as r', 'r.id', 'c.recipe_id')
     .join('excerpts as e', 'e.id', 'c.excerpt_id')
+    .whereNull('c.archived_at')
+    .whereNull('r.archived_at')
     .select(
       'c.id',
       'c.recipe_id',

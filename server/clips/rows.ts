@@ -18,6 +18,7 @@ export interface ClipRow {
   recorded_on: string | null
   kind: Clip['kind']
   notes: string
+  archived_at: string | null
   original_name: string
   rendition_gain_db: number
   container: Clip['container']
@@ -59,6 +60,7 @@ export function clipQuery(knex: Knex) {
       'c.recorded_on',
       'c.kind',
       'c.notes',
+      'c.archived_at',
       'c.original_name',
       'c.rendition_gain_db',
       'c.container',
@@ -95,6 +97,7 @@ export const toClip = (r: ClipRow): Clip => ({
   recordedOn: r.recorded_on,
   kind: r.kind,
   notes: r.notes,
+  archivedAt: r.archived_at,
   originalName: r.original_name,
   renditionGainDb: r.rendition_gain_db,
   renditionLufs: r.loudness_lufs + r.rendition_gain_db,

@@ -232,6 +232,8 @@ export async function listClips(knex: Knex, query: ListClipsQuery): Promise<Clip
   if (query.performerCode) q.where('c.performer_code', query.performerCode.toUpperCase())
   if (query.instrumentCode) q.where('c.instrument_code', query.instrumentCode.toUpperCase())
   if (query.kind) q.where('c.kind', query.kind)
+  if (query.archived === 'hide') q.whereNull('c.archived_at')
+  if (query.archived === 'only') q.whereNotNull('c.archived_at')
   const rows: ClipRow[] = await q.orderBy('c.id', 'desc')
   return rows.map(toClip)
 }

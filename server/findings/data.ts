@@ -46,6 +46,7 @@ export interface FindingsData {
   players: SessionPlayer[]
   resolved: ResolvedAnswers
   answers: number
+  lastAnswerAt: string | null
 }
 
 interface InvitationJoin {
@@ -156,6 +157,10 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
     })),
     resolved,
     answers: stored.length,
+    lastAnswerAt: stored.reduce<string | null>(
+      (latest, a) => (latest === null || a.answered_at > latest ? a.answered_at : latest),
+      null,
+    ),
   }
 }
 

@@ -3,6 +3,7 @@ import type { Knex } from 'knex'
 import { INSTRUMENTS, PLAYER_LEVELS } from '../../shared/constants'
 import type { SessionFindings } from '../../shared/schemas/findings'
 import { agingFindings, loadTimePoints } from './aging'
+import { provenanceOf } from './provenance'
 import {
   answersOf,
   inSubgroup,
@@ -101,6 +102,7 @@ export async function computeSessionFindings(
       ? objectiveFindings(kept.ratings, await clipMeasures(db, clips), attributes)
       : [],
     aging: timePoints ? agingFindings(timePoints, recipes, attributes) : null,
+    provenance: await provenanceOf(db, data),
   }
   return { findings, data }
 }

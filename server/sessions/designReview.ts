@@ -15,6 +15,7 @@ interface ClipInfo {
   performer_code: string
   instrument_code: string
   original_name: string
+  archived_at: string | null
 }
 
 export interface DesignReview {
@@ -44,9 +45,14 @@ export async function reviewDesign(
   const fail = (field: string, message: string) => (errors[field] ??= []).push(message)
   const warnings: string[] = []
 
-  const recipeRows: { id: number; name: string; version: number }[] = design.recipeIds.length
-    ? await db('recipes').whereIn('id', design.recipeIds).select('id', 'name', 'version')
-    : []
+  const recipeRows: { id: number; name: string; version: number; archived_at: string | null }[] =
+    design.recipeIds.length
+      ? await db('recipes')
+          .whereIn('id', design.recipeIds)
+          .select('id', 'name', 'version', 'archived_at')
+      : []
+  for (const r of recipeRows)
+    if (r.archived_at) warnings.push(`${recipeLabel(r.name, r.version)} is archived`)
   const recipeName = new Map(recipeRows.map((r) => [r.id, recipeLabel(r.name, r.version)]))
   for (const id of design.recipeIds)
     if (!recipeName.has(id)) fail('recipeIds', `Recipe ${id} does not exist`)
@@ -67,6 +73,8 @@ export async function reviewDesign(
       const label = set.excerptName ? `Set '${setLabel(set)}'` : `Set '${set.key}'`
       for (const id of set.clipIds) {
         if (!set.clips.some((c) => c.id === id)) fail('clipSets', `Clip ${id} does not exist`)
+        if (set.clips.some((c) => c.id === id && c.archived))
+          warnings.push(`${label}: clip ${id} is archived`)
         if (seen.has(id)) fail('clipSets', `Clip ${id} is in two sets`)
         seen.add(id)
       }
@@ -165,6 +173,7 @@ async function resolveSets(db: Knex, design: StoredDesign): Promise<SetWithMatch
           'c.performer_code',
           'c.instrument_code',
           'c.original_name',
+          'c.archived_at',
         )
     : []
   const byId = new Map(rows.map((r) => [r.id, r]))
@@ -178,6 +187,7 @@ async function resolveSets(db: Knex, design: StoredDesign): Promise<SetWithMatch
               recipeId: r.recipe_id,
               recipeName: recipeLabel(r.recipe_name, r.recipe_version),
               originalName: r.original_name,
+              archived: r.archived_at !== null,
               matchKey: `${r.excerpt_name}|${r.performer_code}|${r.instrument_code}`,
             },
           ]

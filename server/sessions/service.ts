@@ -64,6 +64,7 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
     answersCount: answers,
     trialCount: review.trialCount,
     warnings,
+    recordProblem: s.record_problem ?? null,
     recipes: review.recipes,
     timePoints: family.map((f) => ({ id: f.id, label: f.time_point_label, status: f.status })),
     openedAt: s.opened_at,

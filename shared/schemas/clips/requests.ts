@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { LIMITS } from '../../constants'
+import { ARCHIVED_FILTERS, LIMITS } from '../../constants'
 import { isoDate } from '../common'
 import { CLIP_KINDS, CLIP_LIMITS } from './vocabulary'
 
@@ -79,6 +79,8 @@ export const listClipsQuery = z.object({
   performerCode: z.string().trim().max(CLIP_LIMITS.codeMax).optional(),
   instrumentCode: z.string().trim().max(CLIP_LIMITS.codeMax).optional(),
   kind: z.enum(CLIP_KINDS).optional(),
+  /** Archived clips are hidden unless asked for. */
+  archived: z.enum(ARCHIVED_FILTERS).default('hide'),
 })
 export type ListClipsQuery = z.infer<typeof listClipsQuery>
 

@@ -36,6 +36,8 @@ export interface Clip extends ClipMeasures {
   recordedOn: string | null
   kind: ClipKind
   notes: string
+  /** Set when archived: hidden from lists and pickers, kept for the sessions that use it. */
+  archivedAt: string | null
   originalName: string
   /** The gain the blind rendition carries, and the loudness it reaches. */
   renditionGainDb: number

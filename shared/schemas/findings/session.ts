@@ -23,6 +23,18 @@ export interface FindingsSummary {
   completion: number
 }
 
+/** What the findings were computed from. */
+export interface FindingsProvenance {
+  /** Stored answers of the session's invitations (revoked ones left out). */
+  answers: number
+  /** Players with at least one answer. */
+  players: number
+  excluded: number
+  lastAnswerAt: string | null
+  /** The latest audited change that can alter findings: exclusion, design edit, open, close. */
+  lastChange: { action: string; at: string } | null
+}
+
 export interface SessionFindings {
   session: {
     id: number
@@ -47,4 +59,5 @@ export interface SessionFindings {
   reliability: ReliabilityFindings
   objective: ObjectiveRow[]
   aging: AgingFindings | null
+  provenance: FindingsProvenance
 }

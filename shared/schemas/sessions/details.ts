@@ -23,6 +23,8 @@ export interface ResolvedClip {
   recipeId: number
   recipeName: string
   originalName: string
+  /** Archived since: kept for this session, no longer offered to new ones. */
+  archived: boolean
 }
 
 /** A matched set as the designer shows it: what was recorded, and by whom. */
@@ -56,6 +58,8 @@ export interface SessionDetail extends SessionSummary {
   /** Trials each player gets, hidden duplicates included. */
   trialCount: number
   warnings: string[]
+  /** Why the served record of this (older) session could not be rebuilt; findings refuse. */
+  recordProblem: string | null
   recipes: { id: number; name: string }[]
   /** The first session and every later time point, in order. */
   timePoints: TimePoint[]
