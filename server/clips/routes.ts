@@ -1,6 +1,7 @@
 import { readFile } from 'node:fs/promises'
 import type { Response } from 'express'
 import type { AppContext } from '../context'
+import { archiveClip, restoreClip } from './archive'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { discardTempFiles, filesOf, tempUpload } from './upload'
@@ -138,6 +139,24 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
       params: idParam,
       handler: async (req, res, { params }) => {
         res.json(await deleteClip(ctx, params.id, actorOf(req)))
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/:id/archive',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ clip: await archiveClip(ctx, params.id, actorOf(req)) })
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/:id/restore',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ clip: await restoreClip(ctx, params.id, actorOf(req)) })
       },
     }),
     route({

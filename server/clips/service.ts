@@ -314,7 +314,12 @@ export function updateClip(
       (k) => after[k] !== before[k],
     )
     if (changed.length === 0) return getClip(ctx.knex, id)
-    await assertClipChangeAllowed(ctx.knex, id, changed)
+    // Only what the editor asked to change counts: blank fields are filled in from the recipe.
+    await assertClipChangeAllowed(
+      ctx.knex,
+      id,
+      changed.filter((k) => k in body),
+    )
 
     const remeasured =
       after.kind !== before.kind

@@ -3,7 +3,13 @@ import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import { createRecipe, getRecipe, listRecipes, updateRecipe } from './service'
-import { createRecipeBody, listRecipesQuery, updateRecipeBody } from '../../shared/schemas/recipes'
+import {
+  createRecipeBody,
+  listRecipesQuery,
+  recipeVersionBody,
+  updateRecipeBody,
+} from '../../shared/schemas/recipes'
+import { archiveRecipe, createRecipeVersion, deleteRecipe, restoreRecipe } from './archive'
 import { idParam } from '../../shared/schemas/common'
 
 export function recipeRoutes(ctx: AppContext): RouteDef[] {
@@ -43,6 +49,45 @@ export function recipeRoutes(ctx: AppContext): RouteDef[] {
       body: updateRecipeBody,
       handler: async (req, res, { params, body }) => {
         res.json({ recipe: await updateRecipe(ctx, params.id, body, actorOf(req)) })
+      },
+    }),
+    route({
+      method: 'delete',
+      path: '/:id',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json(await deleteRecipe(ctx, params.id, actorOf(req)))
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/:id/versions',
+      roles: EDITORS,
+      params: idParam,
+      body: recipeVersionBody,
+      handler: async (req, res, { params, body }) => {
+        res
+          .status(201)
+          .json({ recipe: await createRecipeVersion(ctx, params.id, body, actorOf(req)) })
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/:id/archive',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ recipe: await archiveRecipe(ctx, params.id, actorOf(req)) })
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/:id/restore',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (req, res, { params }) => {
+        res.json({ recipe: await restoreRecipe(ctx, params.id, actorOf(req)) })
       },
     }),
   ]

@@ -106,6 +106,10 @@ const NO_BODY: Record<string, string> = {
   'post /api/invitations/:id/resend': 'an action on the invitation named in the path',
   'post /api/invitations/:id/remind': 'an action on the invitation named in the path',
   'post /api/invitations/:id/revoke': 'an action on the invitation named in the path',
+  'post /api/clips/:id/archive': 'an action on the clip named in the path',
+  'post /api/clips/:id/restore': 'an action on the clip named in the path',
+  'post /api/recipes/:id/archive': 'an action on the recipe named in the path',
+  'post /api/recipes/:id/restore': 'an action on the recipe named in the path',
 }
 
 const label = (c: Case) => `${c.method} ${c.path}`
