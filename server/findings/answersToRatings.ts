@@ -56,7 +56,6 @@ export interface ResolvedAnswers {
   more: MoreAnswer[]
   triangles: TriangleAnswer[]
   rows: LongRow[]
-  unreadable: number
 }
 
 export const emptyResolved = (): ResolvedAnswers => ({
@@ -65,7 +64,6 @@ export const emptyResolved = (): ResolvedAnswers => ({
   more: [],
   triangles: [],
   rows: [],
-  unreadable: 0,
 })
 
 /** Appends one player's answers to `out`; `attributes` are the session's attribute keys. */

@@ -57,15 +57,10 @@ export function answersOf(r: ResolvedAnswers, players: ReadonlySet<Id>): Resolve
     more: keep(r.more),
     triangles: keep(r.triangles),
     rows: keep(r.rows),
-    unreadable: r.unreadable,
   }
 }
 
-export function summaryOf(
-  players: SessionPlayer[],
-  answers: number,
-  unreadable: number,
-): FindingsSummary {
+export function summaryOf(players: SessionPlayer[], answers: number): FindingsSummary {
   const done = players.filter((p) => p.done).length
   return {
     invited: players.length,
@@ -73,7 +68,6 @@ export function summaryOf(
     inProgress: players.filter((p) => p.started && !p.done).length,
     excluded: players.filter((p) => p.exclusionReason !== null).length,
     answers,
-    unreadable,
     completion: players.length > 0 ? done / players.length : 0,
   }
 }

@@ -81,7 +81,7 @@ export async function computeSessionFindings(
       status: session.status,
       timePointLabel: session.time_point_label,
     },
-    summary: summaryOf(players, answersInGroup, data.resolved.unreadable),
+    summary: summaryOf(players, answersInGroup),
     filters: {
       instrument: group.instrument ?? null,
       level: group.level ?? null,

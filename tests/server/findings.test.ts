@@ -506,7 +506,8 @@ describe('the demo sessions', () => {
     const warmth = f.attributes.find((a) => a.attribute === 'warmth')!
     const mean = (name: string) => brightness.recipes.find((r) => r.name === name)!.mean!
 
-    expect(f.summary).toMatchObject({ done: 12, unreadable: 0 })
+    // Every stored answer of the demo is read: one that could not be would answer 409.
+    expect(f.summary).toMatchObject({ done: 12 })
     expect(mean('Aurel A bare')).toBeGreaterThan(mean('Aurel A light compound'))
     expect(mean('Aurel A light compound')).toBeGreaterThan(mean('Aurel A heavy compound'))
     for (const [a, b] of [
@@ -520,14 +521,14 @@ describe('the demo sessions', () => {
     expect(warmth.omnibus.p!).toBeGreaterThan(0.05)
     expect(f.reliability.players.filter((p) => p.flagged)).toHaveLength(1)
 
-    const pair = (await reader.get(`/api/findings/${closedPair.id}`)).body as SessionFindings
-    expect(pair.summary.unreadable).toBe(0)
+    const pair = (await reader.get(`/api/findings/${closedPair.id}`).expect(200))
+      .body as SessionFindings
     expect(pair.preferences!.scale.reason).toBeNull()
     const tri = (await reader.get(`/api/findings/${triangle.id}`)).body as SessionFindings
     expect(tri.triangle).toMatchObject({ correct: 6, n: 8 })
-    const open = (await reader.get(`/api/findings/${openRating.id}`)).body as SessionFindings
+    const open = (await reader.get(`/api/findings/${openRating.id}`).expect(200))
+      .body as SessionFindings
     expect(open.summary.answers).toBeGreaterThan(0)
-    expect(open.summary.unreadable).toBe(0)
     await d.close()
   })
 })

@@ -17,8 +17,6 @@ export interface FindingsSummary {
   inProgress: number
   excluded: number
   answers: number
-  /** Stored answers that do not fit the session's plan or the answer format; left out. */
-  unreadable: number
   /** done / invited, 0 when nobody is invited. */
   completion: number
 }
