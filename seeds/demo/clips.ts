@@ -2,7 +2,8 @@ import type { Knex } from 'knex'
 import { encodeWav, synth } from '../../server/audio/index.ts'
 import { DEMO_STAFF } from '../../server/auth/demoAccounts'
 import { measureRecording } from '../../server/clips/measure'
-import { storeClips, type ClipDeps, type PreparedClip } from '../../server/clips/service'
+import type { ClipDeps } from '../../server/clips/balance'
+import { storeClips, type PreparedClip } from '../../server/clips/intake'
 import type { ClipKind } from '../../shared/schemas/clips'
 
 /*

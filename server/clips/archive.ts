@@ -4,7 +4,7 @@ import { conflict, notFound } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { namesOf, opened, sessionsUsing } from '../sessions/usage'
 import type { ClipDetail } from '../../shared/schemas/clips'
-import { getClip } from './service'
+import { getClip } from './read'
 
 // A clip that a session uses is evidence: it is archived (kept, hidden from pickers and lists)
 // instead of deleted, and once a session has opened, only its notes can change.

@@ -6,7 +6,8 @@ import type { Actor } from '../audit/service'
 import type { UploadedFile } from './storage'
 import { RecordingRefused } from './measure'
 import { checkClipFields } from './fields'
-import { clipDeps, measureUpload, storeClips, type PreparedClip } from './service'
+import { clipDeps } from './balance'
+import { measureUpload, storeClips, type PreparedClip } from './intake'
 import { zodMessages } from '../../shared/schemas/fieldErrors'
 import {
   CLIP_LIMITS,

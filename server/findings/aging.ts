@@ -12,7 +12,8 @@ import {
 import type { SessionStatus } from '../../shared/schemas/sessions'
 import type { AgingChange, AgingFindings, RecipeRef } from '../../shared/schemas/findings'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
-import { answersOf, attributeInfo, inSubgroup, type Subgroup } from './compute'
+import { answersOf, inSubgroup, type Subgroup } from './summary'
+import { attributeInfo } from './lineScale'
 import { loadFindingsData } from './data'
 import type { SessionRow } from '../sessions/rows'
 

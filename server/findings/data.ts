@@ -10,7 +10,7 @@ import {
   type AnswerRow,
 } from './answersToRatings'
 import { sessionServedTrials } from '../sessions/servedRecord'
-import { CORRELATED_MEASURES, type ClipMeasureRow } from './compute'
+import { CORRELATED_MEASURES, type ClipMeasureRow } from './objective'
 import { designOf, loadSession, type SessionRow } from '../sessions/rows'
 
 /** Who is asking: services take this rather than the request. */

@@ -4,17 +4,12 @@ import { INSTRUMENTS, PLAYER_LEVELS } from '../../shared/constants'
 import type { SessionFindings } from '../../shared/schemas/findings'
 import { agingFindings, loadTimePoints } from './aging'
 import { provenanceOf } from './provenance'
-import {
-  answersOf,
-  inSubgroup,
-  lineScaleFindings,
-  objectiveFindings,
-  pairPreferences,
-  reliabilityFindings,
-  summaryOf,
-  triangleFindings,
-  type Subgroup,
-} from './compute'
+import { answersOf, inSubgroup, summaryOf, type Subgroup } from './summary'
+import { lineScaleFindings } from './lineScale'
+import { pairPreferences } from './preferences'
+import { triangleFindings } from './triangle'
+import { reliabilityFindings } from './reliability'
+import { objectiveFindings } from './objective'
 import {
   assertMayRead,
   clipMeasures,

@@ -1,7 +1,7 @@
 import type { AppContext } from '../context'
 import { deadlineEnd } from '../auth/invitationTokens'
 import { recordAudit } from '../audit/service'
-import { queueReminder } from './service'
+import { queueReminder } from './followUps'
 import type { SessionRow } from '../sessions/rows'
 
 const DAY = 24 * 60 * 60 * 1000

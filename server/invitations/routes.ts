@@ -2,7 +2,7 @@ import type { AppContext } from '../context'
 import { EDITORS } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
-import { remindInvitation, resendInvitation, revokeInvitation } from './service'
+import { remindInvitation, resendInvitation, revokeInvitation } from './followUps'
 import { idParam } from '../../shared/schemas/common'
 
 export function invitationRoutes(ctx: AppContext): RouteDef[] {

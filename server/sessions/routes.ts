@@ -2,16 +2,13 @@ import type { AppContext } from '../context'
 import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
-import {
-  closeSession,
-  createSession,
-  getSession,
-  listSessions,
-  openSession,
-  updateSession,
-} from './service'
+import { getSession, listSessions } from './read'
+import { createSession, updateSession } from './design'
+import { closeSession, openSession } from './lifecycle'
 import { addTimePoint } from './timePoints'
-import { invitePlayers, listInvitations, remindSession } from '../invitations/service'
+import { invitePlayers } from '../invitations/invite'
+import { listInvitations } from '../invitations/tracking'
+import { remindSession } from '../invitations/followUps'
 import { sessionPreview } from './preview'
 import { labelSheet } from '../invitations/labels'
 import { loadSession } from './rows'

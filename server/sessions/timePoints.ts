@@ -1,9 +1,11 @@
 import type { AppContext } from '../context'
 import { conflict } from '../errors'
 import type { Actor } from '../audit/service'
-import { createSession, getSession, openSession } from './service'
+import { getSession } from './read'
+import { createSession } from './design'
+import { openSession } from './lifecycle'
 import { designOf, loadSession } from './rows'
-import { invitePlayers } from '../invitations/service'
+import { invitePlayers } from '../invitations/invite'
 import type { SessionDetail, TimePointBody } from '../../shared/schemas/sessions'
 
 /**

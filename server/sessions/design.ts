@@ -1,76 +1,24 @@
-import { refixSessionPlans } from './servedRecord'
+/*
+ * Creating a session and changing it. A design is checked before it is stored; a closed session
+ * no longer changes, and once players have answered the design is locked (names, instructions
+ * and the deadline may still change).
+ */
 import { randomBytes } from 'node:crypto'
-import type { Knex } from 'knex'
 import type { AppContext } from '../context'
-import { conflict, notFound } from '../errors'
+import { conflict } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
+import { refixSessionPlans } from './servedRecord'
 import { assertPossible, reviewDesign } from './designReview'
-import {
-  answersCount,
-  designOf,
-  loadSession,
-  summaryQuery,
-  toSummary,
-  type SessionRow,
-  type StoredDesign,
-  type SummaryRow,
-} from './rows'
+import { answersCount, designOf, loadSession, type SessionRow, type StoredDesign } from './rows'
+import { getSession } from './read'
 import {
   LOCKED_DESIGN_FIELDS,
   type SessionDesignParsed,
   type SessionDetail,
-  type SessionSummary,
   type UpdateSessionBody,
 } from '../../shared/schemas/sessions'
 
 export const newSeed = () => randomBytes(8).toString('hex')
-
-export async function listSessions(knex: Knex): Promise<SessionSummary[]> {
-  const rows: SummaryRow[] = await summaryQuery(knex)
-    .orderBy('s.created_at', 'desc')
-    .orderBy('s.id', 'desc')
-  return rows.map(toSummary)
-}
-
-export async function getSession(knex: Knex, id: number, now: Date): Promise<SessionDetail> {
-  const s: SummaryRow | undefined = await summaryQuery(knex).where('s.id', id).first()
-  if (!s) throw notFound('Session')
-  const design = designOf(s)
-  // A draft's passed deadline is worth a warning; a running session's is simply its end.
-  const review = await reviewDesign(knex, { ...design, deadline: s.deadline }, null)
-  const warnings = [...Object.values(review.errors).flat(), ...review.warnings]
-  if (s.status === 'draft' && s.deadline < now.toISOString().slice(0, 10))
-    warnings.push('The deadline has passed: choose a new one before opening')
-  const answers = await answersCount(knex, id)
-  const rootId = s.parent_session_id ?? s.id
-  const family: Pick<SessionRow, 'id' | 'time_point_label' | 'status'>[] = await knex('sessions')
-    .where({ id: rootId })
-    .orWhere({ parent_session_id: rootId })
-    .orderBy('created_at')
-    .orderBy('id')
-    .select('id', 'time_point_label', 'status')
-  return {
-    ...toSummary(s),
-    purpose: s.purpose,
-    recipeIds: design.recipeIds,
-    clipSets: review.clipSets,
-    attributes: design.attributes,
-    duplicates: s.duplicates,
-    allowNoPreference: Boolean(s.allow_no_preference),
-    instructions: s.instructions,
-    reminderDaysBefore: s.reminder_days_before,
-    seed: s.seed,
-    locked: answers > 0,
-    answersCount: answers,
-    trialCount: review.trialCount,
-    warnings,
-    recordProblem: s.record_problem ?? null,
-    recipes: review.recipes,
-    timePoints: family.map((f) => ({ id: f.id, label: f.time_point_label, status: f.status })),
-    openedAt: s.opened_at,
-    closedAt: s.closed_at,
-  }
-}
 
 function storedOf(body: SessionDesignParsed, seed: string): StoredDesign & { deadline: string } {
   return {
@@ -196,59 +144,6 @@ export async function updateSession(
           touched.includes(COLUMNS[f as keyof UpdateSessionBody]),
         ),
       },
-    })
-  })
-  return getSession(ctx.knex, id, now)
-}
-
-export async function openSession(
-  ctx: AppContext,
-  id: number,
-  actor: Actor,
-): Promise<SessionDetail> {
-  const now = ctx.clock.now()
-  await ctx.knex.transaction(async (trx) => {
-    const row = await loadSession(trx, id)
-    if (row.status !== 'draft')
-      throw conflict(
-        row.status === 'open'
-          ? 'This session is already open'
-          : 'A closed session cannot open again',
-      )
-    assertPossible(await reviewDesign(trx, { ...designOf(row), deadline: row.deadline }, now))
-    await trx('sessions')
-      .where({ id })
-      .update({ status: 'open', opened_at: now.toISOString(), updated_at: now.toISOString() })
-    await recordAudit(trx, now, actor, {
-      action: 'session.opened',
-      targetType: 'session',
-      targetId: id,
-    })
-  })
-  return getSession(ctx.knex, id, now)
-}
-
-export async function closeSession(
-  ctx: AppContext,
-  id: number,
-  actor: Actor,
-): Promise<SessionDetail> {
-  const now = ctx.clock.now()
-  await ctx.knex.transaction(async (trx) => {
-    const row = await loadSession(trx, id)
-    if (row.status !== 'open')
-      throw conflict(
-        row.status === 'closed'
-          ? 'This session is already closed'
-          : 'Only an open session can be closed',
-      )
-    await trx('sessions')
-      .where({ id })
-      .update({ status: 'closed', closed_at: now.toISOString(), updated_at: now.toISOString() })
-    await recordAudit(trx, now, actor, {
-      action: 'session.closed',
-      targetType: 'session',
-      targetId: id,
     })
   })
   return getSession(ctx.knex, id, now)

@@ -1,0 +1,81 @@
+/*
+ * What every change to clips shares: the dependencies clip storage needs, the queue that runs
+ * changes to matched sets one at a time, and the helper that re-balances sets around a write.
+ */
+import type { Knex } from 'knex'
+import type { AppContext } from '../context'
+import type { Clock } from '../clock'
+import { mediaFolders, removeMedia, type MediaFolders } from './storage'
+import {
+  discardChanges,
+  loadSetMembers,
+  planGains,
+  renderChanges,
+  replacedFiles,
+  type RenditionChange,
+  type SetKey,
+  type SetMember,
+} from './renditions'
+import type { ResolvedFields } from './fields'
+
+/** What clip storage needs; the demo seed builds it without an HTTP app. */
+export interface ClipDeps {
+  knex: Knex
+  folders: MediaFolders
+  clock: Clock
+}
+
+export const clipDeps = (ctx: AppContext): ClipDeps => ({
+  knex: ctx.knex,
+  folders: mediaFolders(ctx.config.mediaDir),
+  clock: ctx.clock,
+})
+
+// Set gains depend on every member of a set, so changes to sets run one at a time.
+const queues = new WeakMap<Knex, Promise<unknown>>()
+export function serialised<T>(knex: Knex, work: () => Promise<T>): Promise<T> {
+  const previous = queues.get(knex) ?? Promise.resolve()
+  const next = previous.catch(() => undefined).then(work)
+  queues.set(knex, next)
+  return next
+}
+
+export const keyOf = (f: ResolvedFields): SetKey => ({
+  excerptId: f.excerptId,
+  performerCode: f.performerCode,
+  instrumentCode: f.instrumentCode,
+})
+
+/**
+ * Brings the sets named by `keys` to their gains (with `extra` members joining and `excludeIds`
+ * leaving), then runs `write` in the same transaction as the rendition updates. New renditions
+ * are removed if anything fails; replaced ones only once the transaction has committed.
+ */
+export async function withBalancedSets<T>(
+  deps: ClipDeps,
+  keys: SetKey[],
+  change: { extra?: SetMember[]; excludeIds?: number[] },
+  write: (trx: Knex.Transaction, changes: RenditionChange[]) => Promise<T>,
+): Promise<T> {
+  const existing = await loadSetMembers(deps.knex, keys, change.excludeIds)
+  const gains = planGains([...existing, ...(change.extra ?? [])])
+  const changes = await renderChanges(deps.folders, gains)
+  let result: T
+  try {
+    result = await deps.knex.transaction(async (trx) => {
+      const now = deps.clock.now().toISOString()
+      for (const c of changes) {
+        if (c.member.clipId === null) continue
+        await trx('clips')
+          .where({ id: c.member.clipId })
+          .update({ rendition_file: c.file, rendition_gain_db: c.gainDb, updated_at: now })
+      }
+      return write(trx, changes)
+    })
+  } catch (err) {
+    await discardChanges(deps.folders, changes)
+    throw err
+  }
+  await removeMedia(replacedFiles(deps.folders, changes))
+  return result
+}

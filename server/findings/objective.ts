@@ -1,0 +1,80 @@
+/* Clip measures set against perception: Spearman per measure and attribute, with its points. */
+import { CLIP_MEASURES, type MeasureEntry } from '../../shared/measures'
+import { objectiveVsPerceived, type ClipMeasure, type Rating } from '../analysis/index.ts'
+import type { AttributeSpec } from '../../shared/schemas/sessions'
+import type { ObjectiveRow } from '../../shared/schemas/findings'
+
+/** The measures findings set against perception, in the order of the registry. */
+export const CORRELATED_MEASURES = CLIP_MEASURES.filter(
+  (m): m is Extract<MeasureEntry, { correlate: true }> => m.correlate,
+)
+
+/** A clip's id, recipe and correlated measures, by column. */
+export type ClipMeasureRow = { id: number; recipe_id: number } & {
+  [C in (typeof CORRELATED_MEASURES)[number]['column']]: number | null
+}
+
+/** Spearman between each clip measure and each attribute, with the points behind each rho. */
+export function objectiveFindings(
+  ratings: Rating[],
+  clips: ClipMeasureRow[],
+  attributes: AttributeSpec[],
+): ObjectiveRow[] {
+  const measures: ClipMeasure[] = []
+  for (const clip of clips)
+    for (const m of CORRELATED_MEASURES) {
+      const value = clip[m.column]
+      if (typeof value === 'number' && Number.isFinite(value))
+        measures.push({ clip: clip.id, recipe: clip.recipe_id, measure: m.name, value })
+    }
+  const clipRatings = ratings.filter((r) => typeof r.clip === 'number')
+  const engine = objectiveVsPerceived(measures, clipRatings, { level: 'clip' })
+  const perceived = clipMeans(clipRatings)
+  const names = new Map(attributes.map((a) => [a.key, a.name]))
+  const rows: ObjectiveRow[] = []
+  for (const m of CORRELATED_MEASURES) {
+    for (const a of attributes) {
+      const found = engine.find((e) => e.measure === m.name && e.attribute === a.key)
+      const points = clips.flatMap((clip) => {
+        const x = clip[m.column]
+        const y = perceived.get(`${clip.id}|${a.key}`)
+        return typeof x === 'number' && Number.isFinite(x) && y !== undefined
+          ? [{ x, y, clipId: clip.id, recipeId: clip.recipe_id }]
+          : []
+      })
+      rows.push({
+        measure: m.name,
+        unit: m.unit,
+        attribute: a.key,
+        name: names.get(a.key) ?? a.key,
+        rho: found?.rho ?? null,
+        p: found?.p ?? null,
+        n: found?.n ?? points.length,
+        reason: found ? found.reason : 'not enough data',
+        points,
+      })
+    }
+  }
+  return rows
+}
+
+/** Per clip and attribute, the mean of player means: the same y the engine correlates. */
+function clipMeans(ratings: Rating[]): Map<string, number> {
+  const perPlayer = new Map<string, { sum: number; n: number }>()
+  for (const r of ratings) {
+    const k = `${r.clip}|${r.attribute}|${r.player}`
+    const s = perPlayer.get(k) ?? { sum: 0, n: 0 }
+    s.sum += r.value
+    s.n++
+    perPlayer.set(k, s)
+  }
+  const perClip = new Map<string, { sum: number; n: number }>()
+  for (const [k, s] of perPlayer) {
+    const clipKey = k.slice(0, k.lastIndexOf('|'))
+    const c = perClip.get(clipKey) ?? { sum: 0, n: 0 }
+    c.sum += s.sum / s.n
+    c.n++
+    perClip.set(clipKey, c)
+  }
+  return new Map([...perClip].map(([k, c]) => [k, c.sum / c.n]))
+}

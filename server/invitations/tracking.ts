@@ -1,0 +1,66 @@
+/*
+ * Following a session's invitations: the list with each player's progress, and one invitation
+ * with what the mail and the row about it need.
+ */
+import type { Knex } from 'knex'
+import type { AppContext } from '../context'
+import { loadSession } from '../sessions/rows'
+import { trialCountOf } from '../sessions/plans'
+import {
+  answeredCounts,
+  loadInvitation,
+  toInvitationRow,
+  type InvitationDbRow,
+  type InvitedPlayer,
+} from './rows'
+import type { InvitationRow } from '../../shared/schemas/sessions'
+
+export async function listInvitations(
+  knex: Knex,
+  sessionId: number,
+  now: Date,
+  personal: boolean,
+): Promise<InvitationRow[]> {
+  const session = await loadSession(knex, sessionId)
+  const rows: (InvitationDbRow & { code: string; name: string | null; email: string | null })[] =
+    await knex('invitations as i')
+      .join('players as p', 'p.id', 'i.player_id')
+      .where('i.session_id', sessionId)
+      .orderBy('i.player_index')
+      .select('i.*', 'p.code', 'p.name', 'p.email')
+  const answered = await answeredCounts(
+    knex,
+    rows.map((r) => r.id),
+  )
+  const trialCount = await trialCountOf(knex, session)
+  return rows.map((r) =>
+    toInvitationRow(r, { id: r.player_id, code: r.code, name: r.name, email: r.email }, session, {
+      now,
+      answered: answered.get(r.id) ?? 0,
+      trialCount,
+      personal,
+    }),
+  )
+}
+
+/** One invitation with its session, player and progress: what its mail and its row need. */
+export async function invitationContext(trx: Knex, id: number) {
+  const inv = await loadInvitation(trx, id)
+  const session = await loadSession(trx, inv.session_id)
+  const player: InvitedPlayer = await trx('players')
+    .where({ id: inv.player_id })
+    .first('id', 'code', 'name', 'email')
+  const answered = (await answeredCounts(trx, [inv.id])).get(inv.id) ?? 0
+  const trialCount = await trialCountOf(trx, session)
+  return { inv, session, player, progress: { answered, trialCount } }
+}
+
+/** The row staff see for one invitation, as of now. */
+export async function rowOf(ctx: AppContext, id: number): Promise<InvitationRow> {
+  const { inv, session, player, progress } = await invitationContext(ctx.knex, id)
+  return toInvitationRow(inv, player, session, {
+    now: ctx.clock.now(),
+    ...progress,
+    personal: true,
+  })
+}
