@@ -1,0 +1,2 @@
+// Excerpts: the managed list of passages that clips play.
+export { excerptRoutes } from './routes'

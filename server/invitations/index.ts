@@ -1,0 +1,3 @@
+// Invitations: inviting players, tracking, resend, remind, revoke, automatic reminders, the
+// invitation mail and the play-test label sheet.
+export { invitationRoutes } from './routes'

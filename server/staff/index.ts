@@ -1,0 +1,2 @@
+// Staff accounts: inviting colleagues, roles, deactivation (admins only).
+export { staffRoutes } from './routes'
