@@ -1,6 +1,7 @@
 import { readFile } from 'node:fs/promises'
 import type { Response } from 'express'
 import type { AppContext } from '../context'
+import { itemAction } from '../http/itemAction'
 import { archiveClip, restoreClip } from './archive'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -134,32 +135,25 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
         res.json({ clip: await updateClip(ctx, params.id, body, actorOf(req)) })
       },
     }),
-    route({
+    itemAction({
       method: 'delete',
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json(await deleteClip(ctx, params.id, actorOf(req)))
-      },
+      act: (id, actor) => deleteClip(ctx, id, actor),
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/archive',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ clip: await archiveClip(ctx, params.id, actorOf(req)) })
-      },
+      key: 'clip',
+      act: (id, actor) => archiveClip(ctx, id, actor),
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/restore',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ clip: await restoreClip(ctx, params.id, actorOf(req)) })
-      },
+      key: 'clip',
+      act: (id, actor) => restoreClip(ctx, id, actor),
     }),
     route({
       // The blind rendition; players will reach renditions through session codes, not here.

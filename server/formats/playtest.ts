@@ -6,7 +6,7 @@ import {
   williamsRowCount,
 } from '../design/index.ts'
 import { STRING_FITTING_CAUTION } from '../../shared/cautions'
-import { checkSliders, sortedRecord } from './shared'
+import { checkSliders, collectSliders, sortedRecord } from './shared'
 import { playtestAnswer } from '../../shared/schemas/rating'
 import type { FormatModule } from './types'
 
@@ -46,28 +46,16 @@ export const playtestFormat: FormatModule<'playtest'> = {
   canonical: (a) => ({ kind: a.kind, values: sortedRecord(a.values), comment: a.comment }),
   resolve: () => ({}),
 
-  collect(out, trial, answer, context, attributes) {
-    // A set has no clip; its recipe and showing stand in, so reliability still pairs a set
-    // with its hidden repeat.
-    const clip = `set:${trial.recipeId}`
-    for (const attribute of attributes) {
-      const value = answer.values[attribute]
-      if (value === undefined) continue
-      out.ratings.push({ player: context.player, recipe: trial.recipeId, attribute, value, clip })
-      out.rows.push({
-        ...context,
-        excerpt: '',
-        attribute,
-        codes: [trial.code],
-        recipes: [trial.recipeId],
-        answerCode: null,
-        answerRecipe: null,
-        value,
-        comment: answer.comment ?? '',
-      })
-    }
-    return true
-  },
+  // A set has no clip; its recipe and showing stand in, so reliability still pairs a set
+  // with its hidden repeat.
+  collect: (out, trial, answer, context, attributes) =>
+    collectSliders(out, answer.values, context, attributes, {
+      recipe: trial.recipeId,
+      clip: `set:${trial.recipeId}`,
+      code: trial.code,
+      excerpt: '',
+      comment: answer.comment ?? '',
+    }),
 
   olderAnswer: (r) =>
     typeof r.ratings === 'object' ? { kind: 'playtest', values: r.ratings } : null,

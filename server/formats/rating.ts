@@ -6,7 +6,7 @@ import {
   williamsRowCount,
 } from '../design/index.ts'
 import { LISTENING_CAUTION } from '../../shared/cautions'
-import { blindClip, checkSliders, sortedRecord } from './shared'
+import { blindClip, checkSliders, collectSliders, sortedRecord } from './shared'
 import { ratingAnswer } from '../../shared/schemas/rating'
 import type { FormatModule } from './types'
 
@@ -56,31 +56,14 @@ export const ratingFormat: FormatModule<'rating'> = {
   canonical: (a) => ({ kind: a.kind, values: sortedRecord(a.values) }),
   resolve: () => ({}),
 
-  collect(out, trial, answer, context, attributes) {
-    const { clip, excerptKey } = trial
-    for (const attribute of attributes) {
-      const value = answer.values[attribute]
-      if (value === undefined) continue
-      out.ratings.push({
-        player: context.player,
-        recipe: clip.recipeId,
-        attribute,
-        value,
-        clip: clip.clipId,
-      })
-      out.rows.push({
-        ...context,
-        excerpt: excerptKey,
-        attribute,
-        codes: [clip.code],
-        recipes: [clip.recipeId],
-        answerCode: null,
-        answerRecipe: null,
-        value,
-      })
-    }
-    return true
-  },
+  collect: (out, { clip, excerptKey }, answer, context, attributes) =>
+    collectSliders(out, answer.values, context, attributes, {
+      recipe: clip.recipeId,
+      clip: clip.clipId,
+      code: clip.code,
+      excerpt: excerptKey,
+      comment: '',
+    }),
 
   olderAnswer: (r) =>
     typeof r.ratings === 'object' ? { kind: 'rating', values: r.ratings } : null,

@@ -1,5 +1,6 @@
 import type { BlindClip, DesignClip, Id, SessionCodes } from '../design/index.ts'
-import type { AddProblem } from './types'
+import type { ResolvedAnswers } from '../findings/answersToRatings'
+import type { AddProblem, AnswerContext } from './types'
 
 // Small pieces more than one format needs.
 
@@ -50,4 +51,35 @@ export function checkSliders(
   if (Object.keys(values).length === 0)
     add('answer.values', 'Move at least one slider before saving')
   checkAttributeKeys(add, 'answer.values', Object.keys(values), known)
+}
+
+/**
+ * Line-scale values of one answer into the findings' ratings and export rows, in the order of
+ * the session's attributes; `rated` says what was rated (a clip, or a play-test set).
+ */
+export function collectSliders(
+  out: ResolvedAnswers,
+  values: Record<string, number>,
+  context: AnswerContext,
+  attributes: readonly string[],
+  rated: { recipe: Id; clip: Id; code: number; excerpt: string; comment: string },
+): true {
+  for (const attribute of attributes) {
+    const value = values[attribute]
+    if (value === undefined) continue
+    const { recipe, clip, code, excerpt, comment } = rated
+    out.ratings.push({ player: context.player, recipe, attribute, value, clip })
+    out.rows.push({
+      ...context,
+      excerpt,
+      attribute,
+      codes: [code],
+      recipes: [recipe],
+      answerCode: null,
+      answerRecipe: null,
+      value,
+      comment,
+    })
+  }
+  return true
 }

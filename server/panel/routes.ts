@@ -1,5 +1,6 @@
 import multer from 'multer'
 import type { AppContext } from '../context'
+import { itemAction } from '../http/itemAction'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import {
@@ -69,14 +70,12 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
         res.json({ player: await updatePlayer(ctx, params.id, body, actorOf(req)) })
       },
     }),
-    route({
+    itemAction({
       method: 'delete',
       path: '/players/:id',
       roles: ADMIN,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ player: await erasePlayer(ctx, params.id, actorOf(req)) })
-      },
+      key: 'player',
+      act: (id, actor) => erasePlayer(ctx, id, actor),
     }),
     route({
       // The CSV is the upload itself; its rows are checked by the import, not by a body schema.

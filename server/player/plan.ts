@@ -4,9 +4,10 @@ import type { AppContext } from '../context'
 import type { PlannedTrial } from '../design/index.ts'
 import { assertConsent, openForAnswers, type PlayerInvitationRow } from './access'
 import { servedTrials } from '../sessions/servedRecord'
+import { playerFacing } from '../sessions/plans'
 import { formatOf } from '../formats/index.ts'
 import { servingsOf } from '../formats/answers'
-import { designOf, type SessionRow } from '../sessions/rows'
+import type { SessionRow } from '../sessions/rows'
 import type { PlayerClipView, PlayerPlanView, PlayerTrialView } from '../../shared/schemas/rating'
 
 /** Waveforms are drawn on a phone at most this many columns wide; more is only bytes. */
@@ -156,16 +157,7 @@ export async function playerPlanView(ctx: AppContext, token: string): Promise<Pl
     }
   }
 
-  return {
-    sessionName: session.name,
-    format: session.format,
-    instructions: session.instructions,
-    deadline: session.deadline,
-    cautions: [...format.cautions],
-    attributes: format.ratesAttributes ? designOf(session).attributes : [],
-    allowNoPreference: format.noPreferenceOption && Boolean(session.allow_no_preference),
-    trials: trials.map(trialView),
-  }
+  return { ...playerFacing(session), trials: trials.map(trialView) }
 }
 
 /**

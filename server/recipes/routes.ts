@@ -1,4 +1,5 @@
 import type { AppContext } from '../context'
+import { itemAction } from '../http/itemAction'
 import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -51,14 +52,11 @@ export function recipeRoutes(ctx: AppContext): RouteDef[] {
         res.json({ recipe: await updateRecipe(ctx, params.id, body, actorOf(req)) })
       },
     }),
-    route({
+    itemAction({
       method: 'delete',
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json(await deleteRecipe(ctx, params.id, actorOf(req)))
-      },
+      act: (id, actor) => deleteRecipe(ctx, id, actor),
     }),
     route({
       method: 'post',
@@ -72,23 +70,19 @@ export function recipeRoutes(ctx: AppContext): RouteDef[] {
           .json({ recipe: await createRecipeVersion(ctx, params.id, body, actorOf(req)) })
       },
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/archive',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ recipe: await archiveRecipe(ctx, params.id, actorOf(req)) })
-      },
+      key: 'recipe',
+      act: (id, actor) => archiveRecipe(ctx, id, actor),
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/restore',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ recipe: await restoreRecipe(ctx, params.id, actorOf(req)) })
-      },
+      key: 'recipe',
+      act: (id, actor) => restoreRecipe(ctx, id, actor),
     }),
   ]
 }

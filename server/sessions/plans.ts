@@ -1,5 +1,5 @@
 import { DesignError, type SessionDesignInput } from '../design/index.ts'
-import { buildPlayerPlan, sessionCodes } from '../formats/index.ts'
+import { buildPlayerPlan, formatOf, sessionCodes } from '../formats/index.ts'
 import { conflict } from '../errors'
 import type { Knex } from 'knex'
 import { clipRecipes, designInput, designOf, type SessionRow } from './rows'
@@ -30,4 +30,21 @@ export function planFor(input: SessionDesignInput, playerIndex: number) {
 /** Trials per player: the same for every player of a session. */
 export async function trialCountOf(db: Knex, s: SessionRow): Promise<number> {
   return planFor(await sessionInput(db, s), 0).trials.length
+}
+
+/**
+ * The words and scales a player is shown for a session, the same on the player's own page and
+ * in the staff preview: a triangle asks only for the odd one, so it shows no attributes.
+ */
+export function playerFacing(s: SessionRow) {
+  const format = formatOf(s.format)
+  return {
+    sessionName: s.name,
+    format: s.format,
+    instructions: s.instructions,
+    deadline: s.deadline,
+    cautions: [...format.cautions],
+    attributes: format.ratesAttributes ? designOf(s).attributes : [],
+    allowNoPreference: format.noPreferenceOption && Boolean(s.allow_no_preference),
+  }
 }

@@ -1,9 +1,9 @@
 import type { Knex } from 'knex'
 import type { PlannedTrial } from '../design/index.ts'
-import { planFor, sessionInput } from './plans'
+import { planFor, playerFacing, sessionInput } from './plans'
 import { formatOf } from '../formats/index.ts'
 import { servingsOf } from '../formats/answers'
-import { designOf, type SessionRow } from './rows'
+import type { SessionRow } from './rows'
 import type { PreviewClip, PreviewTrial, SessionPreview } from '../../shared/schemas/sessions'
 
 // The staff preview: what player N of a session will be shown, trial by trial, by blind code.
@@ -32,14 +32,5 @@ export async function sessionPreview(
     clips: servingsOf(t).map(clip),
     setCode: format.setCode(t),
   })
-  return {
-    sessionName: s.name,
-    format: s.format,
-    instructions: s.instructions,
-    deadline: s.deadline,
-    cautions: [...format.cautions],
-    attributes: format.ratesAttributes ? designOf(s).attributes : [],
-    allowNoPreference: format.noPreferenceOption && Boolean(s.allow_no_preference),
-    trials: plan.trials.map(trialOf),
-  }
+  return { ...playerFacing(s), trials: plan.trials.map(trialOf) }
 }

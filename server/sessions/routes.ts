@@ -1,4 +1,5 @@
 import type { AppContext } from '../context'
+import { itemAction } from '../http/itemAction'
 import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -60,23 +61,19 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
         res.json({ session: await updateSession(ctx, params.id, body, actorOf(req)) })
       },
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/open',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ session: await openSession(ctx, params.id, actorOf(req)) })
-      },
+      key: 'session',
+      act: (id, actor) => openSession(ctx, id, actor),
     }),
-    route({
+    itemAction({
       method: 'post',
       path: '/:id/close',
       roles: EDITORS,
-      params: idParam,
-      handler: async (req, res, { params }) => {
-        res.json({ session: await closeSession(ctx, params.id, actorOf(req)) })
-      },
+      key: 'session',
+      act: (id, actor) => closeSession(ctx, id, actor),
     }),
     route({
       method: 'get',
