@@ -1,7 +1,7 @@
 import { readFile } from 'node:fs/promises'
 import type { Response } from 'express'
 import type { AppContext } from '../context'
-import { itemAction } from '../http/itemAction'
+import { itemAction, listItems, readItem, updateItem } from '../http/itemRoutes'
 import { archiveClip, restoreClip } from './archive'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -62,22 +62,18 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
   })
 
   return [
-    route({
-      method: 'get',
+    listItems({
       path: '/',
       roles: STAFF,
+      key: 'clips',
       query: listClipsQuery,
-      handler: async (_req, res, { query }) => {
-        res.json({ clips: await listClips(ctx.knex, query) })
-      },
+      list: (query) => listClips(ctx.knex, query),
     }),
-    route({
-      method: 'get',
+    listItems({
       path: '/matched-sets',
       roles: STAFF,
-      handler: async (_req, res) => {
-        res.json({ sections: await matchedSets(ctx.knex) })
-      },
+      key: 'sections',
+      list: () => matchedSets(ctx.knex),
     }),
     route({
       method: 'post',
@@ -116,24 +112,18 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
         }
       },
     }),
-    route({
-      method: 'get',
+    readItem({
       path: '/:id',
       roles: STAFF,
-      params: idParam,
-      handler: async (_req, res, { params }) => {
-        res.json({ clip: await getClip(ctx.knex, params.id) })
-      },
+      key: 'clip',
+      read: (id) => getClip(ctx.knex, id),
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
+      key: 'clip',
       body: updateClipBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ clip: await updateClip(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updateClip(ctx, id, body, actor),
     }),
     itemAction({
       method: 'delete',

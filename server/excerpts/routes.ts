@@ -1,39 +1,31 @@
 import type { AppContext } from '../context'
+import { createItem, listItems, updateItem } from '../http/itemRoutes'
 import { EDITORS, STAFF } from '../../shared/constants'
-import { route, type RouteDef } from '../http/routeTable'
-import { actorOf } from '../http/authenticate'
+import type { RouteDef } from '../http/routeTable'
 import { createExcerpt, listExcerpts, updateExcerpt } from './service'
 import { createExcerptBody, updateExcerptBody } from '../../shared/schemas/clips'
-import { idParam } from '../../shared/schemas/common'
 
 export function excerptRoutes(ctx: AppContext): RouteDef[] {
   return [
-    route({
-      method: 'get',
+    listItems({
       path: '/',
       roles: STAFF,
-      handler: async (_req, res) => {
-        res.json({ excerpts: await listExcerpts(ctx.knex) })
-      },
+      key: 'excerpts',
+      list: () => listExcerpts(ctx.knex),
     }),
-    route({
-      method: 'post',
+    createItem({
       path: '/',
       roles: EDITORS,
+      key: 'excerpt',
       body: createExcerptBody,
-      handler: async (req, res, { body }) => {
-        res.status(201).json({ excerpt: await createExcerpt(ctx, body, actorOf(req)) })
-      },
+      create: (body, actor) => createExcerpt(ctx, body, actor),
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
+      key: 'excerpt',
       body: updateExcerptBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ excerpt: await updateExcerpt(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updateExcerpt(ctx, id, body, actor),
     }),
   ]
 }

@@ -1,7 +1,7 @@
 import type { AppContext } from '../context'
 import { EDITORS } from '../../shared/constants'
 import type { RouteDef } from '../http/routeTable'
-import { itemAction } from '../http/itemAction'
+import { itemAction } from '../http/itemRoutes'
 import { remindInvitation, resendInvitation, revokeInvitation } from './followUps'
 
 export function invitationRoutes(ctx: AppContext): RouteDef[] {

@@ -1,6 +1,6 @@
 import multer from 'multer'
 import type { AppContext } from '../context'
-import { itemAction } from '../http/itemAction'
+import { createItem, itemAction, listItems, readItem, updateItem } from '../http/itemRoutes'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
 import {
@@ -13,7 +13,6 @@ import {
 } from './service'
 import { importPanelCsv } from './csvImport'
 import { createPlayerBody, listPlayersQuery, updatePlayerBody } from '../../shared/schemas/panel'
-import { idParam } from '../../shared/schemas/common'
 import { ADMIN, EDITORS, LIMITS, STAFF } from '../../shared/constants'
 import { badRequest } from '../errors'
 
@@ -33,42 +32,32 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
         res.json(await panelSummary(ctx.knex))
       },
     }),
-    route({
-      method: 'get',
+    listItems({
       path: '/players',
       roles: EDITORS,
+      key: 'players',
       query: listPlayersQuery,
-      handler: async (_req, res, { query }) => {
-        res.json({ players: await listPlayers(ctx.knex, query) })
-      },
+      list: (query) => listPlayers(ctx.knex, query),
     }),
-    route({
-      method: 'get',
+    readItem({
       path: '/players/:id',
       roles: ADMIN,
-      params: idParam,
-      handler: async (_req, res, { params }) => {
-        res.json({ player: await getPlayer(ctx.knex, params.id) })
-      },
+      key: 'player',
+      read: (id) => getPlayer(ctx.knex, id),
     }),
-    route({
-      method: 'post',
+    createItem({
       path: '/players',
       roles: ADMIN,
+      key: 'player',
       body: createPlayerBody,
-      handler: async (req, res, { body }) => {
-        res.status(201).json({ player: await createPlayer(ctx, body, actorOf(req)) })
-      },
+      create: (body, actor) => createPlayer(ctx, body, actor),
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/players/:id',
       roles: ADMIN,
-      params: idParam,
+      key: 'player',
       body: updatePlayerBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ player: await updatePlayer(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updatePlayer(ctx, id, body, actor),
     }),
     itemAction({
       method: 'delete',

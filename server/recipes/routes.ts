@@ -1,5 +1,5 @@
 import type { AppContext } from '../context'
-import { itemAction } from '../http/itemAction'
+import { createItem, itemAction, listItems, readItem, updateItem } from '../http/itemRoutes'
 import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -15,42 +15,32 @@ import { idParam } from '../../shared/schemas/common'
 
 export function recipeRoutes(ctx: AppContext): RouteDef[] {
   return [
-    route({
-      method: 'get',
+    listItems({
       path: '/',
       roles: STAFF,
+      key: 'recipes',
       query: listRecipesQuery,
-      handler: async (_req, res, { query }) => {
-        res.json({ recipes: await listRecipes(ctx.knex, query) })
-      },
+      list: (query) => listRecipes(ctx.knex, query),
     }),
-    route({
-      method: 'get',
+    readItem({
       path: '/:id',
       roles: STAFF,
-      params: idParam,
-      handler: async (_req, res, { params }) => {
-        res.json({ recipe: await getRecipe(ctx.knex, params.id) })
-      },
+      key: 'recipe',
+      read: (id) => getRecipe(ctx.knex, id),
     }),
-    route({
-      method: 'post',
+    createItem({
       path: '/',
       roles: EDITORS,
+      key: 'recipe',
       body: createRecipeBody,
-      handler: async (req, res, { body }) => {
-        res.status(201).json({ recipe: await createRecipe(ctx, body, actorOf(req)) })
-      },
+      create: (body, actor) => createRecipe(ctx, body, actor),
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
+      key: 'recipe',
       body: updateRecipeBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ recipe: await updateRecipe(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updateRecipe(ctx, id, body, actor),
     }),
     itemAction({
       method: 'delete',

@@ -1,5 +1,5 @@
 import type { AppContext } from '../context'
-import { itemAction } from '../http/itemAction'
+import { createItem, itemAction, listItems, updateItem } from '../http/itemRoutes'
 import { EDITORS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -25,22 +25,18 @@ import {
 export function sessionRoutes(ctx: AppContext): RouteDef[] {
   const now = () => ctx.clock.now()
   return [
-    route({
-      method: 'get',
+    listItems({
       path: '/',
       roles: STAFF,
-      handler: async (_req, res) => {
-        res.json({ sessions: await listSessions(ctx.knex) })
-      },
+      key: 'sessions',
+      list: () => listSessions(ctx.knex),
     }),
-    route({
-      method: 'post',
+    createItem({
       path: '/',
       roles: EDITORS,
+      key: 'session',
       body: sessionDesignBody,
-      handler: async (req, res, { body }) => {
-        res.status(201).json({ session: await createSession(ctx, body, actorOf(req)) })
-      },
+      create: (body, actor) => createSession(ctx, body, actor),
     }),
     route({
       method: 'get',
@@ -51,15 +47,12 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
         res.json({ session: await getSession(ctx.knex, params.id, now()) })
       },
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/:id',
       roles: EDITORS,
-      params: idParam,
+      key: 'session',
       body: updateSessionBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ session: await updateSession(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updateSession(ctx, id, body, actor),
     }),
     itemAction({
       method: 'post',

@@ -1,4 +1,5 @@
 import type { AppContext } from '../context'
+import { createItem, listItems, updateItem } from '../http/itemRoutes'
 import { ADMIN } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
@@ -8,32 +9,25 @@ import { idParam } from '../../shared/schemas/common'
 
 export function staffRoutes(ctx: AppContext): RouteDef[] {
   return [
-    route({
-      method: 'get',
+    listItems({
       path: '/',
       roles: ADMIN,
-      handler: async (_req, res) => {
-        res.json({ users: await listStaff(ctx) })
-      },
+      key: 'users',
+      list: () => listStaff(ctx),
     }),
-    route({
-      method: 'post',
+    createItem({
       path: '/',
       roles: ADMIN,
+      key: 'user',
       body: inviteUserBody,
-      handler: async (req, res, { body }) => {
-        res.status(201).json({ user: await inviteStaff(ctx, body, actorOf(req)) })
-      },
+      create: (body, actor) => inviteStaff(ctx, body, actor),
     }),
-    route({
-      method: 'patch',
+    updateItem({
       path: '/:id',
       roles: ADMIN,
-      params: idParam,
+      key: 'user',
       body: updateUserBody,
-      handler: async (req, res, { params, body }) => {
-        res.json({ user: await updateStaff(ctx, params.id, body, actorOf(req)) })
-      },
+      update: (id, body, actor) => updateStaff(ctx, id, body, actor),
     }),
     route({
       method: 'post',
