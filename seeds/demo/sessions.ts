@@ -42,18 +42,12 @@ function storyOutbox(knex: Knex, outbox: Outbox, clock: Clock, sent: () => boole
   return {
     ...outbox,
     async enqueue(mail, trx) {
+      const id = await outbox.enqueue(mail, trx)
       const at = clock.now().toISOString()
-      const [id] = await (trx ?? knex)('outbox').insert({
-        to: mail.to,
-        subject: mail.subject,
-        text: mail.text,
-        html: mail.html,
-        kind: mail.kind,
-        status: sent() ? 'sent' : 'pending',
-        created_at: at,
-        sent_at: sent() ? at : null,
-      })
-      return id as number
+      await (trx ?? knex)('outbox')
+        .where({ id })
+        .update(sent() ? { created_at: at, status: 'sent', sent_at: at } : { created_at: at })
+      return id
     },
     deliverDue: async () => {},
   }
