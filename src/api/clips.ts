@@ -49,7 +49,10 @@ export const clipsApi = {
   get: (id: number) => api.get<{ clip: ClipDetail }>(`/clips/${id}`),
   update: (id: number, body: UpdateClipBody) =>
     api.patch<{ clip: ClipDetail }>(`/clips/${id}`, body),
+  /** Refused (409) once a session uses the clip: archive it instead. */
   remove: (id: number) => api.del<{ id: number }>(`/clips/${id}`),
+  archive: (id: number) => api.post<{ clip: ClipDetail }>(`/clips/${id}/archive`),
+  restore: (id: number) => api.post<{ clip: ClipDetail }>(`/clips/${id}/restore`),
   matchedSets: () => api.get<{ sections: MatchedSetSection[] }>('/clips/matched-sets'),
   originalUrl: (id: number) => `/api/clips/${id}/original`,
 

@@ -2,11 +2,14 @@ import { h } from 'vue'
 import { NButton, NSpace, NTag, type DataTableColumns } from 'naive-ui'
 import type { Clip } from '@shared/schemas/clips'
 import { fmt } from './clipFormat'
+import { archiveMenu, archivedTag } from './archiveControls'
 
 export interface ClipColumnHandlers {
-  /** Editors get the delete button, and the actions column widens for it. */
+  /** Editors get archive and delete, and the actions column widens for them. */
   canEdit: boolean
   preview: (clip: Clip) => void
+  archive: (clip: Clip) => void
+  restore: (clip: Clip) => void
   remove: (clip: Clip) => void
 }
 
@@ -14,6 +17,8 @@ export interface ClipColumnHandlers {
 export function createClipColumns({
   canEdit,
   preview,
+  archive,
+  restore,
   remove,
 }: ClipColumnHandlers): DataTableColumns<Clip> {
   return [
@@ -21,9 +26,13 @@ export function createClipColumns({
     {
       title: 'Recipe',
       key: 'recipeName',
-      width: 210,
+      width: 260,
       sorter: (a, b) => a.recipeName.localeCompare(b.recipeName),
-      render: (c) => `${c.recipeName} v${c.recipeVersion}`,
+      render: (c) =>
+        h(NSpace, { size: 6, align: 'center', wrap: false }, () => [
+          `${c.recipeName} v${c.recipeVersion}`,
+          archivedTag(c.archivedAt),
+        ]),
     },
     { title: 'Excerpt', key: 'excerptName', width: 130, sorter: 'default' },
     {
@@ -65,7 +74,9 @@ export function createClipColumns({
     {
       title: '',
       key: 'actions',
-      width: canEdit ? 190 : 110,
+      width: canEdit ? 180 : 110,
+      // Kept in view: the measures scroll beside it on narrower screens.
+      fixed: 'right',
       render: (c) =>
         h(NSpace, { size: 'small', wrap: false }, () => [
           h(
@@ -74,11 +85,13 @@ export function createClipColumns({
             () => 'Listen ▶',
           ),
           canEdit
-            ? h(
-                NButton,
-                { size: 'small', type: 'error', ghost: true, onClick: () => remove(c) },
-                () => 'Delete…',
-              )
+            ? archiveMenu({
+                label: `Clip ${c.id}`,
+                archived: c.archivedAt !== null,
+                archive: () => archive(c),
+                restore: () => restore(c),
+                remove: () => remove(c),
+              })
             : null,
         ]),
     },

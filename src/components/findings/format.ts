@@ -12,3 +12,16 @@ export const interval = (ci: Interval | null | undefined, digits = 1) =>
 
 export const percent = (x: number | null | undefined) =>
   x === null || x === undefined ? '—' : `${Math.round(x * 100)}%`
+
+const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec']
+
+/**
+ * A moment as a printed report names it: "2 Dec 2026 14:03", in the reader's local time. The
+ * month is spelled so that day and month cannot be swapped between countries.
+ */
+export function reportTime(iso: string): string {
+  const d = new Date(iso)
+  if (Number.isNaN(d.getTime())) return '—'
+  const two = (n: number) => String(n).padStart(2, '0')
+  return `${d.getDate()} ${MONTHS[d.getMonth()]} ${d.getFullYear()} ${two(d.getHours())}:${two(d.getMinutes())}`
+}
