@@ -36,10 +36,6 @@ export async function createRecipeVersion(
   actor: Actor,
 ): Promise<Recipe> {
   const base = await getRecipe(ctx.knex, id)
-  const name = changes.name ?? base.name
-  const [{ max }] = (await ctx.knex('recipes').where({ name }).max({ max: 'version' })) as {
-    max: number | null
-  }[]
   const {
     id: _id,
     parentName: _p,
@@ -49,17 +45,7 @@ export async function createRecipeVersion(
     archivedAt: _x,
     ...fields
   } = base
-  const created = await createRecipe(
-    ctx,
-    { ...fields, ...changes, name, version: (max ?? 0) + 1, parentId: id },
-    actor,
-  )
-  await recordAudit(ctx.knex, ctx.clock.now(), actor, {
-    action: 'recipe.versioned',
-    targetType: 'recipe',
-    targetId: created.id,
-    details: { from: id, version: created.version },
-  })
+  const created = await createRecipe(ctx, { ...fields, ...changes }, actor, id)
   return created
 }
 

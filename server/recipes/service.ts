@@ -154,10 +154,21 @@ function columns(body: Partial<NewRecipe>): Record<string, unknown> {
 
 export async function createRecipe(
   ctx: AppContext,
-  body: NewRecipe,
+  given: NewRecipe,
   actor: Actor,
+  /** Makes the recipe the next version of this one: numbered inside the same transaction. */
+  versionOf?: number,
 ): Promise<Recipe> {
   const id = await ctx.knex.transaction(async (trx) => {
+    let body = given
+    if (versionOf !== undefined) {
+      const [{ max }] = (await trx('recipes')
+        .where({ name: given.name })
+        .max({ max: 'version' })) as {
+        max: number | null
+      }[]
+      body = { ...given, version: (max ?? 0) + 1, parentId: versionOf }
+    }
     await checkUnique(trx, body.name, body.version)
     await checkParent(trx, null, body.parentId)
     const now = ctx.clock.now().toISOString()
@@ -173,6 +184,13 @@ export async function createRecipe(
       targetId: id as number,
       details: { name: body.name, version: body.version },
     })
+    if (versionOf !== undefined)
+      await recordAudit(trx, ctx.clock.now(), actor, {
+        action: 'recipe.versioned',
+        targetType: 'recipe',
+        targetId: id as number,
+        details: { from: versionOf, version: body.version },
+      })
     return id as number
   })
   return getRecipe(ctx.knex, id)

@@ -8,6 +8,8 @@ export interface UsingSession {
   id: number
   name: string
   status: 'draft' | 'open' | 'closed'
+  /** Aging studies repeat a name at each time point; the label tells them apart. */
+  time_point_label: string | null
 }
 
 /** Sessions whose design names the clip or the recipe, oldest first. */
@@ -17,14 +19,14 @@ export async function sessionsUsing(
 ): Promise<UsingSession[]> {
   const rows: (UsingSession & { recipe_ids: string; clip_sets: string })[] = await db('sessions')
     .orderBy('id')
-    .select('id', 'name', 'status', 'recipe_ids', 'clip_sets')
+    .select('id', 'name', 'status', 'time_point_label', 'recipe_ids', 'clip_sets')
   return rows
     .filter((r) =>
       'clipId' in item
         ? (JSON.parse(r.clip_sets) as ClipSetSpec[]).some((s) => s.clipIds.includes(item.clipId))
         : (JSON.parse(r.recipe_ids) as number[]).includes(item.recipeId),
     )
-    .map(({ id, name, status }) => ({ id, name, status }))
+    .map(({ id, name, status, time_point_label }) => ({ id, name, status, time_point_label }))
 }
 
 /** Sessions that have been opened: their players may already have been served the item. */
@@ -32,4 +34,6 @@ export const opened = (sessions: UsingSession[]) => sessions.filter((s) => s.sta
 
 /** "«Name» (open), «Other» (closed)": how a refusal names the sessions in the way. */
 export const namesOf = (sessions: UsingSession[]) =>
-  sessions.map((s) => `“${s.name}” (${s.status})`).join(', ')
+  sessions
+    .map((s) => `“${s.name}${s.time_point_label ? `, ${s.time_point_label}` : ''}” (${s.status})`)
+    .join(', ')

@@ -134,6 +134,10 @@ describe('clips and recipes used by a session', () => {
           .send({ gaugeMm: 0.71 })
         expect(version.status).toBe(201)
         expect(version.body.recipe).toMatchObject({ version: 2, parentId: recipe, gaugeMm: 0.71 })
+        const versioned = await t
+          .knex('audit_log')
+          .where({ action: 'recipe.versioned', target_id: String(version.body.recipe.id) })
+        expect(versioned).toHaveLength(1)
         await developer.post(`/api/recipes/${recipe}/archive`).expect(200)
       }
       expect(await evidence(id), format).toEqual(before)
