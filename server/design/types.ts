@@ -16,7 +16,7 @@ export interface DesignClipSet {
   clips: DesignClip[]
 }
 
-/** What a session stores to rebuild every player's plan, today or in a year. */
+/** What a session's plans are dealt from: the same input always deals the same plans. */
 export interface SessionDesignInput {
   format: SessionFormat
   recipes: Id[]

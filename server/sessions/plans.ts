@@ -4,8 +4,9 @@ import { conflict } from '../errors'
 import type { Knex } from 'knex'
 import { clipRecipes, designInput, designOf, type SessionRow } from './rows'
 
-// A session's plans as the design rebuilds them: shared by the player's pages, the staff
-// preview, invitations, labels and findings.
+// Plans built from a session's design: for fixing a new invitation's served record, for the
+// staff preview and for trial counts. Answers are never read through these; they are read
+// through the served record (servedRecord.ts).
 
 /** A session's design ready to plan from, with clips paired to recipes from the database. */
 export async function sessionInput(db: Knex, s: SessionRow) {
