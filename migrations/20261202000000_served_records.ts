@@ -27,10 +27,12 @@ export async function up(knex: Knex): Promise<void> {
 }
 
 export async function down(knex: Knex): Promise<void> {
+  // Plain DROP COLUMNs: knex would rebuild each SQLite table, and dropping the old one inside
+  // the migration's transaction cascades to the rows that refer to it (sessions' invitations).
   for (const table of ['clips', 'recipes'])
     if (await knex.schema.hasColumn(table, 'archived_at'))
-      await knex.schema.alterTable(table, (t) => t.dropColumn('archived_at'))
+      await knex.raw(`alter table ${table} drop column archived_at`)
   if (await knex.schema.hasColumn('sessions', 'record_problem'))
-    await knex.schema.alterTable('sessions', (t) => t.dropColumn('record_problem'))
+    await knex.raw('alter table sessions drop column record_problem')
   await knex.schema.dropTableIfExists('served_plans')
 }

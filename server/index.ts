@@ -5,6 +5,7 @@ import { createApp } from './app'
 import { smtpMailer } from './mail/transport'
 import { startFakeSmtp, type FakeSmtp } from './mail/fakeSmtp'
 import { startReminderTimer } from './invitations/reminders'
+import { refreshRenditionsAtStart } from './clips/refreshRenditions'
 
 // Only start-up and listening live here; everything testable is in createApp.
 const started = Date.now()
@@ -38,6 +39,13 @@ const server = app.listen(config.port, () => {
   )
 })
 
+// Renditions made before every matched set shared one format and level are made again, set by
+// set through the set queue, while the server already answers.
+const stopRefresh = new AbortController()
+const refresh = refreshRenditionsAtStart(ctx, stopRefresh.signal).catch((err: unknown) =>
+  ctx.logger.error(err, 'Renditions could not be checked'),
+)
+
 // Mail that waited while SMTP was down goes out on the next tick of this timer.
 void ctx.outbox.deliverDue()
 const timer = setInterval(() => void ctx.outbox.deliverDue(), config.mail.pollMs || 10_000)
@@ -47,7 +55,9 @@ const stopReminders = startReminderTimer(ctx, Number(process.env.REMINDER_POLL_M
 async function shutdown() {
   clearInterval(timer)
   stopReminders()
+  stopRefresh.abort()
   server.close()
+  await refresh
   await ctx.outbox.settle()
   await fake?.close()
   await knex.destroy()

@@ -51,6 +51,17 @@ const PERFORMERS = [
   { code: 'PF-02', levelDb: -9, attackScale: 1.25 },
 ]
 
+/**
+ * Excerpts recorded a second time by a performer, as a session's twins and hidden repeats
+ * need: another performance of the same passage, a touch slower and softer, so the two takes
+ * are different recordings rather than one file served twice.
+ */
+const SECOND_TAKES = [
+  { excerpt: 'scale', performer: 'PF-01' },
+  { excerpt: 'phrase', performer: 'PF-02' },
+]
+const TAKE_TWO = { tempo: 1.04, levelDb: -0.7, attackScale: 1.15 }
+
 // Semitones above the open string and seconds per note.
 const SCALE = [0, 2, 4, 5, 7, 9, 11, 12].map((s) => [s, 0.45] as const)
 const PHRASE = [
@@ -74,11 +85,12 @@ function notes(
   level: number,
   attack: number,
   seq: readonly (readonly [number, number])[],
+  tempo = 1,
 ) {
   const parts = seq.map(([semitones, seconds]) =>
     synth.bowedTone({
       f0: f0 * 2 ** (semitones / 12),
-      seconds,
+      seconds: seconds * tempo,
       attackSeconds: attack,
       harmonicAmplitudes: harmonics(voice.rollOff),
       peakDbfs: level,
@@ -128,14 +140,20 @@ function fadeOut(samples: Float32Array, seconds = 0.08): Float32Array {
   return samples
 }
 
-function render(f0: number, voice: Voice, performer: (typeof PERFORMERS)[number], excerpt: string) {
-  const attack = voice.attack * performer.attackScale
-  if (excerpt === 'pluck ring-out') return ringOut(f0, voice, performer.levelDb + 3)
+function render(
+  f0: number,
+  voice: Voice,
+  performer: (typeof PERFORMERS)[number],
+  excerpt: string,
+  take = { tempo: 1, levelDb: 0, attackScale: 1 },
+) {
+  const attack = voice.attack * performer.attackScale * take.attackScale
+  const level = performer.levelDb + take.levelDb
+  if (excerpt === 'pluck ring-out') return ringOut(f0, voice, level + 3)
   const silence = new Float32Array(Math.round(0.15 * RATE))
-  const body =
-    excerpt === 'open string'
-      ? notes(f0, voice, performer.levelDb, attack, [[0, 3.2]])
-      : notes(f0, voice, performer.levelDb, attack, excerpt === 'scale' ? SCALE : PHRASE)
+  const seq =
+    excerpt === 'open string' ? ([[0, 3.2]] as const) : excerpt === 'scale' ? SCALE : PHRASE
+  const body = notes(f0, voice, level, attack, seq, take.tempo)
   const out = new Float32Array(silence.length + body.length)
   out.set(body, silence.length)
   return fadeOut(out)
@@ -172,27 +190,38 @@ export async function seedDemoClips(deps: ClipDeps): Promise<number> {
         for (const excerpt of EXCERPTS) {
           const excerptId = excerptIds.get(excerpt.name)
           if (!excerptId) continue
-          const mono = render(string.f0, voice, performer, excerpt.name)
-          // The second microphone a little quieter, as in a real stereo pair.
-          const channels = string.stereo ? [mono, mono.map((v) => v * 0.9)] : [mono]
-          const bytes = encodeWav(channels, RATE, { bitDepth: 16 })
-          prepared.push({
-            fields: {
-              recipeId: recipe.id,
-              excerptId,
-              performerCode: performer.code,
-              instrumentCode: string.instrumentCode,
-              bowStroke: excerpt.bowStroke,
-              stringPlayed: recipe.string_name,
-              stringsAgeDays: 3,
-              recordedOn: '2026-10-14',
-              kind: excerpt.kind,
-              notes: '',
-            },
-            originalName: `${slug(voice.recipe)}_${slug(excerpt.name)}_${performer.code}.wav`,
-            measured: await measureRecording(bytes, excerpt.kind),
-            source: { bytes },
-          })
+          const again = SECOND_TAKES.some(
+            (t) => t.excerpt === excerpt.name && t.performer === performer.code,
+          )
+          for (const take of again ? [1, 2] : [1]) {
+            const mono = render(
+              string.f0,
+              voice,
+              performer,
+              excerpt.name,
+              take === 2 ? TAKE_TWO : undefined,
+            )
+            // The second microphone a little quieter, as in a real stereo pair.
+            const channels = string.stereo ? [mono, mono.map((v) => v * 0.9)] : [mono]
+            const bytes = encodeWav(channels, RATE, { bitDepth: 16 })
+            prepared.push({
+              fields: {
+                recipeId: recipe.id,
+                excerptId,
+                performerCode: performer.code,
+                instrumentCode: string.instrumentCode,
+                bowStroke: excerpt.bowStroke,
+                stringPlayed: recipe.string_name,
+                stringsAgeDays: 3,
+                recordedOn: '2026-10-14',
+                kind: excerpt.kind,
+                notes: '',
+              },
+              originalName: `${slug(voice.recipe)}_${slug(excerpt.name)}_${performer.code}${take === 2 ? '_take2' : ''}.wav`,
+              measured: await measureRecording(bytes, excerpt.kind),
+              source: { bytes },
+            })
+          }
         }
       }
     }

@@ -74,7 +74,16 @@ async function clipSet(
     .select('c.id', 'c.recipe_id')
   const clipIds = recipeIds.map((r) => rows.find((c) => c.recipe_id === r)?.id)
   if (clipIds.some((id) => id === undefined)) return null
-  return { key: `${excerpt} · ${performer} · ${instrument}`, clipIds: clipIds as number[] }
+  // Each recipe's second take, where one was recorded, serves its twins and hidden repeats.
+  const twinClipIds = recipeIds.flatMap((r) => {
+    const takes = rows.filter((c) => c.recipe_id === r)
+    return takes.length > 1 ? [takes[1].id] : []
+  })
+  return {
+    key: `${excerpt} · ${performer} · ${instrument}`,
+    clipIds: clipIds as number[],
+    twinClipIds,
+  }
 }
 
 /** Each player opens their link, consents, and answers as far as the story says. */
@@ -149,7 +158,8 @@ export async function seedDemoSessions(appCtx: AppContext): Promise<number> {
       recipeIds,
       clipSets: sets,
       duplicates: demo.duplicates,
-      instructions: demo.instructions,
+      playerTitle: demo.playerTitle,
+      playerMessage: demo.playerMessage,
       deadline: day(demo.deadlineDays).toISOString().slice(0, 10),
       timePointLabel: demo.label ?? null,
     })

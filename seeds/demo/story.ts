@@ -18,7 +18,9 @@ export interface DemoSession {
   sets: [string, string, string][]
   duplicates: number
   deadlineDays: number
-  instructions: string
+  /** What players see: neutral words that pass the player-words check. */
+  playerTitle: string
+  playerMessage: string
   players: string[]
   /** Answers given per player, by invitation order; 'all' marks the player done. */
   progress: (number | 'all')[]
@@ -61,7 +63,9 @@ export const SESSIONS: DemoSession[] = [
     ],
     duplicates: 1,
     deadlineDays: 30,
-    instructions: 'Listen to both recordings as often as you like, then choose the one you prefer.',
+    playerTitle: 'Spring listening, which do you prefer?',
+    playerMessage:
+      'Listen to both recordings as often as you like, then choose the one you prefer.',
     players: [],
     progress: [],
   },
@@ -77,7 +81,8 @@ export const SESSIONS: DemoSession[] = [
     ],
     duplicates: 2,
     deadlineDays: 12,
-    instructions: 'Use headphones in a quiet room. Rate each recording on every scale.',
+    playerTitle: 'Winter listening round',
+    playerMessage: 'Use headphones in a quiet room. Rate each recording on every scale.',
     players: [...VIOLINISTS, ...MORE_VIOLINISTS],
     progress: ['all', 6, 2, 0],
   },
@@ -93,7 +98,8 @@ export const SESSIONS: DemoSession[] = [
     ],
     duplicates: 1,
     deadlineDays: -5,
-    instructions: 'Two of the three recordings are of the same string. Pick the one that differs.',
+    playerTitle: 'Cello listening: the odd one out',
+    playerMessage: 'Two of the three recordings are of the same string. Pick the one that differs.',
     players: CELLISTS,
     progress: ['all', 'all', 'all', 'all'],
   },
@@ -106,7 +112,8 @@ export const SESSIONS: DemoSession[] = [
     sets: [],
     duplicates: 0,
     deadlineDays: -10,
-    instructions:
+    playerTitle: 'Strings to try at home, first fitting',
+    playerMessage:
       'Fit each coded set in the order on your sheet, play it for two days, then rate it.',
     players: VIOLINISTS,
     progress: ['all', 'all', 'all', 'all'],
@@ -121,7 +128,8 @@ export const SESSIONS: DemoSession[] = [
     sets: [],
     duplicates: 0,
     deadlineDays: 20,
-    instructions:
+    playerTitle: 'Strings to try at home, two weeks on',
+    playerMessage:
       'Fit each coded set in the order on your sheet, play it for two days, then rate it.',
     players: VIOLINISTS,
     progress: [1],
@@ -140,7 +148,8 @@ export const SESSIONS: DemoSession[] = [
     ],
     duplicates: 2,
     deadlineDays: -20,
-    instructions: 'Use headphones in a quiet room. Rate each recording on every scale.',
+    playerTitle: 'Evening listening, autumn round',
+    playerMessage: 'Use headphones in a quiet room. Rate each recording on every scale.',
     players: LISTENING_PANEL,
     progress: LISTENING_PANEL.map(() => 'all'),
     profiled: true,
@@ -158,7 +167,9 @@ export const SESSIONS: DemoSession[] = [
     ],
     duplicates: 1,
     deadlineDays: -30,
-    instructions: 'Listen to both recordings as often as you like, then choose the one you prefer.',
+    playerTitle: 'Which do you prefer? Late summer round',
+    playerMessage:
+      'Listen to both recordings as often as you like, then choose the one you prefer.',
     players: LISTENING_PANEL.slice(0, 10),
     progress: LISTENING_PANEL.slice(0, 10).map(() => 'all'),
   },

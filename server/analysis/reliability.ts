@@ -80,7 +80,7 @@ export function reliability(
   const panel = new Map<string, { sum: number; count: number }>()
   for (const r of ratings) {
     if (typeof r.value !== 'number' || !Number.isFinite(r.value)) continue
-    const itemKey = key(r.player, r.recipe, r.clip, r.attribute)
+    const itemKey = key(r.player, r.recipe, r.item ?? r.clip, r.attribute)
     const item = repeats.get(itemKey) ?? { player: r.player, values: [] }
     item.values.push(r.value)
     repeats.set(itemKey, item)

@@ -26,4 +26,9 @@ export interface Rating {
   value: number
   /** The clip (or coded set) the answer was given for; lets reliability find hidden duplicates. */
   clip?: Id
+  /**
+   * The stimulus rated, where it is not the clip: a hidden repeat played from a second take
+   * rates its first showing's item again. Reliability pairs ratings of one item.
+   */
+  item?: Id
 }

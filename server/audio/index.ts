@@ -16,7 +16,16 @@ export type { FlacEncodeOptions } from './flacEncoder.ts'
 export { biquadGainDb, deriveKWeighting, K_WEIGHTING_48K, kWeighting } from './kWeighting.ts'
 export type { Biquad, KWeighting } from './kWeighting.ts'
 export { dbToGain, gainToDb, mixToMono, samplePeakDbfs } from './level.ts'
-export { channelWeights, integratedLoudness } from './loudness.ts'
+export { fitChannels, fitLength, END_FADE_SECONDS } from './fitLength.ts'
+export {
+  gainForLoudness,
+  LEVEL_AIM_LU,
+  LEVEL_TOLERANCE_LU,
+  loudnessAt,
+  matchSetLevels,
+} from './levelMatch.ts'
+export type { GainSolution, SetLevelInput, SetLevels } from './levelMatch.ts'
+export { channelWeights, gatedLoudness, integratedLoudness, loudnessBlocks } from './loudness.ts'
 export { waveformPeaks } from './peaks.ts'
 export type { WaveformPeaks } from './peaks.ts'
 export { estimateF0, yinFrame } from './pitch.ts'
@@ -28,6 +37,22 @@ export {
   renditionGain,
 } from './rendition.ts'
 export type { MatchedSetGains } from './rendition.ts'
+export { resampleChannel, resampleChannels } from './resample.ts'
+export {
+  chooseSetFormat,
+  framesAt,
+  MAX_RENDITION_RATE,
+  sameSetFormat,
+  setFormatProblems,
+} from './setFormat.ts'
+export type { SetFormat, SetFormatProblem, SourceFormat } from './setFormat.ts'
+export {
+  levelInput,
+  prepareRendition,
+  renderMatchedSet,
+  writeMatchedRendition,
+} from './setRendition.ts'
+export type { MatchedSetRenditions, WrittenRendition } from './setRendition.ts'
 export { sniffContainer } from './sniff.ts'
 export type { AudioContainer } from './sniff.ts'
 export * as synth from './synth.ts'

@@ -57,23 +57,21 @@ function kWeightedStepEnergy(
 }
 
 /**
- * Integrated loudness in LUFS per ITU-R BS.1770-4: K-weighting, 400 ms blocks every 100 ms,
- * an absolute gate at −70 LUFS, then a relative gate 10 LU below the loudness of the blocks that
- * passed it. Returns −Infinity when no block passes (silence, or shorter than one block).
- * The 100 ms step is rounded to whole samples, which is exact at all common rates.
+ * The K-weighted, channel-weighted mean square of every 400 ms block (a block every 100 ms): what
+ * the BS.1770 gates act on. The 100 ms step is rounded to whole samples, which is exact at all
+ * common rates. Empty when the signal is shorter than one block.
  */
-export function integratedLoudness(
+export function loudnessBlocks(
   channels: readonly Float32Array[],
   sampleRate: number,
   weights: readonly number[] = channelWeights(channels.length),
-): number {
+): Float64Array {
   const { shelf, highPass } = kWeighting(sampleRate)
   const step = Math.round(sampleRate / 10)
   const stepEnergies = channels.map((channel) =>
     kWeightedStepEnergy(channel, shelf, highPass, step),
   )
-  const blockCount = (stepEnergies[0]?.length ?? 0) - BLOCK_STEPS + 1
-  if (blockCount <= 0) return -Infinity
+  const blockCount = Math.max(0, (stepEnergies[0]?.length ?? 0) - BLOCK_STEPS + 1)
 
   // Weighted mean square of each block, summed over channels.
   const blockPower = new Float64Array(blockCount)
@@ -87,15 +85,28 @@ export function integratedLoudness(
       blockPower[j] += (weight * window) / blockSamples
     }
   })
+  return blockPower
+}
 
+/**
+ * The gated loudness of blocks from `loudnessBlocks`, as if the signal had been multiplied by a
+ * linear gain whose square is `powerGain`: an absolute gate at −70 LUFS, then a relative gate
+ * 10 LU below the loudness of the blocks that passed it. The filters are linear, so this is the
+ * meter's reading of the scaled signal without filtering it again; only the gates see the
+ * gain, which is why loudness is not simply linear in gain. −Infinity when no block passes.
+ */
+export function gatedLoudness(blockPower: Float64Array, powerGain = 1): number {
+  const blockCount = blockPower.length
+  if (blockCount === 0) return -Infinity
   const toLufs = (power: number) => LOUDNESS_OFFSET + 10 * Math.log10(power)
   const absoluteGate = 10 ** ((ABSOLUTE_GATE_LUFS - LOUDNESS_OFFSET) / 10)
   const gatedMean = (threshold: number) => {
     let sum = 0
     let count = 0
     for (let j = 0; j < blockCount; j++) {
-      if (blockPower[j] > threshold) {
-        sum += blockPower[j]
+      const power = blockPower[j] * powerGain
+      if (power > threshold) {
+        sum += power
         count++
       }
     }
@@ -105,4 +116,17 @@ export function integratedLoudness(
   if (ungated === 0) return -Infinity
   const relativeGate = Math.max(absoluteGate, ungated * 10 ** (RELATIVE_GATE_LU / 10))
   return toLufs(gatedMean(relativeGate))
+}
+
+/**
+ * Integrated loudness in LUFS per ITU-R BS.1770-4: K-weighting, 400 ms blocks every 100 ms,
+ * an absolute gate at −70 LUFS, then a relative gate 10 LU below the loudness of the blocks that
+ * passed it. Returns −Infinity when no block passes (silence, or shorter than one block).
+ */
+export function integratedLoudness(
+  channels: readonly Float32Array[],
+  sampleRate: number,
+  weights: readonly number[] = channelWeights(channels.length),
+): number {
+  return gatedLoudness(loudnessBlocks(channels, sampleRate, weights))
 }

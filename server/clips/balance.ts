@@ -6,16 +6,8 @@ import type { Knex } from 'knex'
 import type { AppContext } from '../context'
 import type { Clock } from '../clock'
 import { mediaFolders, removeMedia, type MediaFolders } from './storage'
-import {
-  discardChanges,
-  loadSetMembers,
-  planGains,
-  renderChanges,
-  replacedFiles,
-  type RenditionChange,
-  type SetKey,
-  type SetMember,
-} from './renditions'
+import { discardChanges, renderChanges, replacedFiles, type RenditionChange } from './renditions'
+import { loadSetMembers, renditionColumns, type SetKey, type SetMember } from './setMembers'
 import type { ResolvedFields } from './fields'
 
 /** What clip storage needs; the demo seed builds it without an HTTP app. */
@@ -47,9 +39,10 @@ export const keyOf = (f: ResolvedFields): SetKey => ({
 })
 
 /**
- * Brings the sets named by `keys` to their gains (with `extra` members joining and `excludeIds`
- * leaving), then runs `write` in the same transaction as the rendition updates. New renditions
- * are removed if anything fails; replaced ones only once the transaction has committed.
+ * Brings the sets named by `keys` to their one format and level (with `extra` members joining
+ * and `excludeIds` leaving), then runs `write` in the same transaction as the rendition updates.
+ * New renditions are removed if anything fails; replaced ones only once the transaction has
+ * committed.
  */
 export async function withBalancedSets<T>(
   deps: ClipDeps,
@@ -58,8 +51,7 @@ export async function withBalancedSets<T>(
   write: (trx: Knex.Transaction, changes: RenditionChange[]) => Promise<T>,
 ): Promise<T> {
   const existing = await loadSetMembers(deps.knex, keys, change.excludeIds)
-  const gains = planGains([...existing, ...(change.extra ?? [])])
-  const changes = await renderChanges(deps.folders, gains)
+  const changes = await renderChanges(deps.folders, [...existing, ...(change.extra ?? [])])
   let result: T
   try {
     result = await deps.knex.transaction(async (trx) => {
@@ -68,7 +60,12 @@ export async function withBalancedSets<T>(
         if (c.member.clipId === null) continue
         await trx('clips')
           .where({ id: c.member.clipId })
-          .update({ rendition_file: c.file, rendition_gain_db: c.gainDb, updated_at: now })
+          .update({
+            rendition_file: c.file,
+            rendition_gain_db: c.gainDb,
+            ...renditionColumns(c.facts),
+            updated_at: now,
+          })
       }
       return write(trx, changes)
     })

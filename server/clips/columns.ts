@@ -4,6 +4,7 @@
  */
 import type { ResolvedFields } from './fields'
 import type { ClipUploadFields } from '../../shared/schemas/clips'
+import type { MemberRow } from './setMembers'
 
 export function fieldColumns(f: ResolvedFields) {
   return {
@@ -21,7 +22,7 @@ export function fieldColumns(f: ResolvedFields) {
 }
 
 /** The columns of a stored clip that edits and deletes read. */
-export interface StoredRow {
+export interface StoredRow extends MemberRow {
   id: number
   recipe_id: number
   excerpt_id: number

@@ -8,7 +8,7 @@ import { notFound } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { originalPath, readOriginal, removeMedia, renditionPath } from './storage'
 import { measureColumns, measureRecording } from './measure'
-import { setKeyId, type SetMember } from './renditions'
+import { memberOfRow, setKeyId } from './setMembers'
 import { resolveClipFields, type ResolvedFields } from './fields'
 import { fieldColumns, fieldsOfRow, type StoredRow } from './columns'
 import { clipDeps, keyOf, serialised, withBalancedSets } from './balance'
@@ -72,16 +72,7 @@ export function updateClip(
     const newKey = keyOf(after)
     if (setKeyId(oldKey) === setKeyId(newKey)) await ctx.knex.transaction(write)
     else {
-      const moving: SetMember = {
-        key: newKey,
-        clipId: id,
-        loudnessLufs: row.loudness_lufs,
-        peakDbfs: row.peak_dbfs,
-        bitDepth: row.bit_depth,
-        originalFile: row.original_file,
-        renditionFile: row.rendition_file,
-        gainDb: row.rendition_gain_db,
-      }
+      const moving = memberOfRow(newKey, row)
       await withBalancedSets(deps, [oldKey, newKey], { extra: [moving], excludeIds: [id] }, write)
     }
     return getClip(ctx.knex, id)

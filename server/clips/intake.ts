@@ -16,7 +16,7 @@ import {
   type UploadedFile,
 } from './storage'
 import { measureColumns, measureRecording, RecordingRefused, type Measured } from './measure'
-import type { SetMember } from './renditions'
+import { renditionColumns, sourceOfRow, type SetMember } from './setMembers'
 import { resolveClipFields, type ResolvedFields } from './fields'
 import { clipQuery, toClip, type ClipRow } from './rows'
 import { fieldColumns } from './columns'
@@ -52,12 +52,11 @@ export function storeClips(
         members.push({
           key: keyOf(p.fields),
           clipId: null,
-          loudnessLufs: p.measured.loudnessLufs,
-          peakDbfs: p.measured.analysis.peakDbfs,
-          bitDepth: p.measured.analysis.bitDepth,
+          source: sourceOfRow(measureColumns(p.measured)),
           originalFile: file,
           renditionFile: null,
           gainDb: null,
+          rendition: null,
         })
       }
       const ids = await withBalancedSets(
@@ -75,6 +74,7 @@ export function storeClips(
               original_file: members[i].originalFile,
               rendition_file: rendition.file,
               rendition_gain_db: rendition.gainDb,
+              ...renditionColumns(rendition.facts),
               ...measureColumns(p.measured),
               created_by: actor.userId,
               created_at: now,

@@ -14,6 +14,7 @@ interface SetRow {
   instrument_code: string
   loudness_lufs: number
   rendition_gain_db: number
+  rendition_loudness_lufs: number | null
 }
 
 /**
@@ -41,6 +42,7 @@ export async function matchedSets(knex: Knex): Promise<MatchedSetSection[]> {
       'c.instrument_code',
       'c.loudness_lufs',
       'c.rendition_gain_db',
+      'c.rendition_loudness_lufs',
     )
     .orderBy(['r.instrument', 'r.string_name', 'e.name', 'c.performer_code', 'c.instrument_code'])
     .orderBy('c.id')
@@ -71,7 +73,7 @@ export async function matchedSets(knex: Knex): Promise<MatchedSetSection[]> {
         instrumentCode: r.instrument_code,
         cells: {},
         complete: false,
-        targetLufs: r.loudness_lufs + r.rendition_gain_db,
+        targetLufs: r.rendition_loudness_lufs ?? r.loudness_lufs + r.rendition_gain_db,
       }
       section.byKey.set(setKey, set)
       section.sets.push(set)

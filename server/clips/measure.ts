@@ -1,5 +1,5 @@
 import { analyseClip, isAudioError, type ClipAnalysis } from '../audio/index.ts'
-import type { ClipKind } from '../../shared/schemas/clips'
+import { CLIP_LIMITS, type ClipKind } from '../../shared/schemas/clips'
 import type { StoredContainer } from './storage'
 import { CLIP_MEASURES, type ClipMeasureKey } from '../../shared/measures'
 
@@ -28,6 +28,13 @@ export async function measureRecording(bytes: Uint8Array, kind: ClipKind): Promi
   if (analysis.loudnessLufs === null) {
     throw new RecordingRefused(
       'The recording is too short or too quiet to measure its loudness (at least 0.4 s of sound).',
+    )
+  }
+  // Every rendition of a set is cut to its shortest take, so a take too short to compare would
+  // cut all the others down with it.
+  if (analysis.durationSeconds < CLIP_LIMITS.minSeconds) {
+    throw new RecordingRefused(
+      `The recording lasts ${analysis.durationSeconds.toFixed(2)} s; a clip must last at least ${CLIP_LIMITS.minSeconds} s to be compared with others.`,
     )
   }
   // RF64 holds the same samples as WAV; the original keeps its bytes, so only the name differs.

@@ -1,5 +1,21 @@
-import type { Knex } from 'knex'
-import { decodeAudio, matchedSetGains, writeRenditionWav } from '../audio/index.ts'
+/*
+ * Writing the blind renditions of matched sets: every rendition of a set in one format, at one
+ * loudness measured on the file itself.
+ */
+import { readFile } from 'node:fs/promises'
+import {
+  chooseSetFormat,
+  decodeAudio,
+  decodeWav,
+  LEVEL_TOLERANCE_LU,
+  levelInput,
+  matchSetLevels,
+  prepareRendition,
+  sameSetFormat,
+  writeMatchedRendition,
+  type SetFormat,
+  type SetLevelInput,
+} from '../audio/index.ts'
 import { CLIP_LIMITS } from '../../shared/schemas/clips'
 import {
   readOriginal,
@@ -8,121 +24,126 @@ import {
   writeRenditionFile,
   type MediaFolders,
 } from './storage'
-
-/** Clips of one excerpt by one performer on one instrument: only the string differs. */
-export interface SetKey {
-  excerptId: number
-  performerCode: string
-  instrumentCode: string
-}
-
-export const setKeyId = (k: SetKey) => `${k.excerptId}|${k.performerCode}|${k.instrumentCode}`
-
-export interface SetMember {
-  key: SetKey
-  /** Null for a clip not stored yet. */
-  clipId: number | null
-  loudnessLufs: number
-  peakDbfs: number
-  bitDepth: number
-  originalFile: string
-  /** Null until the first rendition is written. */
-  renditionFile: string | null
-  gainDb: number | null
-}
+import { setKeyId, type RenditionFacts, type SetMember } from './setMembers'
 
 export interface RenditionChange {
   member: SetMember
   gainDb: number
   file: string
+  facts: RenditionFacts
 }
 
 // Below this a new gain is inaudible and not worth a new file.
 const GAIN_STEP_DB = 0.01
+// Prepared takes kept between finding the gains and writing (Float32 samples, ~128 MB);
+// beyond it a take is prepared again when written, so a set of long takes never fills memory.
+const RETAIN_SAMPLES = 32 * 2 ** 20
 
-interface MemberRow {
-  id: number
-  excerpt_id: number
-  performer_code: string
-  instrument_code: string
-  loudness_lufs: number
-  peak_dbfs: number
-  bit_depth: number
-  original_file: string
-  rendition_file: string
-  rendition_gain_db: number
-}
+const yieldToOthers = () => new Promise<void>((resolve) => setImmediate(resolve))
 
-export async function loadSetMembers(
-  db: Knex,
-  keys: readonly SetKey[],
-  excludeIds: readonly number[] = [],
-): Promise<SetMember[]> {
-  const unique = new Map(keys.map((k) => [setKeyId(k), k]))
-  const members: SetMember[] = []
-  for (const key of unique.values()) {
-    const rows: MemberRow[] = await db('clips')
-      .where({
-        excerpt_id: key.excerptId,
-        performer_code: key.performerCode,
-        instrument_code: key.instrumentCode,
-      })
-      .whereNotIn('id', excludeIds)
-      .orderBy('id')
-    for (const r of rows) {
-      members.push({
-        key,
-        clipId: r.id,
-        loudnessLufs: r.loudness_lufs,
-        peakDbfs: r.peak_dbfs,
-        bitDepth: r.bit_depth,
-        originalFile: r.original_file,
-        renditionFile: r.rendition_file,
-        gainDb: r.rendition_gain_db,
-      })
-    }
-  }
-  return members
+async function prepared(folders: MediaFolders, member: SetMember, format: SetFormat) {
+  const audio = await decodeAudio(await readOriginal(folders, member.originalFile))
+  return prepareRendition(audio, format)
 }
 
 /**
- * The gain of every member, set by set: each set is brought to the target together and lowered
- * together when one clip would otherwise peak above the ceiling.
+ * The level of a take read from its rendition, when that is already in the set's format: the
+ * file is the prepared take times its gain, so taking the gain out again gives what preparing
+ * the original would, without decoding and resampling it. A new take joining a set then costs
+ * its set-mates one read of their renditions. Null when the original must be prepared.
  */
-export function planGains(members: readonly SetMember[]): Map<SetMember, number> {
-  const bySet = new Map<string, SetMember[]>()
-  for (const m of members) {
-    const id = setKeyId(m.key)
-    bySet.set(id, [...(bySet.get(id) ?? []), m])
+async function writtenLevel(
+  folders: MediaFolders,
+  member: SetMember,
+  format: SetFormat,
+): Promise<SetLevelInput | null> {
+  const { renditionFile, gainDb, rendition } = member
+  if (renditionFile === null || gainDb === null || rendition === null) return null
+  if (!sameSetFormat(rendition.format, format)) return null
+  try {
+    const file = await readFile(renditionPath(folders, renditionFile))
+    const audio = decodeWav(new Uint8Array(file.buffer, file.byteOffset, file.byteLength))
+    const frames = audio.channels[0]?.length ?? 0
+    if (audio.channels.length !== format.channels || frames !== format.frames) return null
+    const level = levelInput(audio.channels, format.sampleRate)
+    const power = 10 ** (gainDb / 10)
+    return { blocks: level.blocks.map((b) => b / power), peakDbfs: level.peakDbfs - gainDb }
+  } catch {
+    return null
   }
-  const gains = new Map<SetMember, number>()
-  for (const set of bySet.values()) {
-    const { gainsDb } = matchedSetGains(set, CLIP_LIMITS.targetLufs, CLIP_LIMITS.ceilingDbfs)
-    set.forEach((m, i) => gains.set(m, gainsDb[i]))
-  }
-  return gains
 }
 
 /**
- * Writes a new rendition for every member that has none or whose gain moved. Files are only
- * added here; the caller records them and removes the replaced ones after its commit. If any
- * rendering fails, the files already written are removed before the error goes on.
+ * Brings every set the members belong to under the one-format rule (server/audio/setFormat.ts)
+ * at one measured level, and writes a new rendition for every member that has none, or whose
+ * format, gain or level moved. Files are only added here; the caller records them and removes
+ * the replaced ones after its commit. If any rendering fails, the files already written are
+ * removed before the error goes on.
  */
 export async function renderChanges(
   folders: MediaFolders,
-  gains: ReadonlyMap<SetMember, number>,
+  members: readonly SetMember[],
 ): Promise<RenditionChange[]> {
+  const bySet = new Map<string, SetMember[]>()
+  for (const m of members) bySet.set(setKeyId(m.key), [...(bySet.get(setKeyId(m.key)) ?? []), m])
   const changes: RenditionChange[] = []
   try {
-    for (const [member, gainDb] of gains) {
-      const moved = member.gainDb === null || Math.abs(member.gainDb - gainDb) >= GAIN_STEP_DB
-      if (member.renditionFile !== null && !moved) continue
-      const audio = await decodeAudio(await readOriginal(folders, member.originalFile))
-      const bytes = writeRenditionWav(audio.channels, audio.sampleRate, {
-        bitDepth: member.bitDepth <= 16 ? 16 : 24,
-        gainDb,
+    for (const set of bySet.values()) changes.push(...(await renderSet(folders, set)))
+  } catch (err) {
+    await discardChanges(folders, changes)
+    throw err
+  }
+  return changes
+}
+
+async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<RenditionChange[]> {
+  const format = chooseSetFormat(set.map((m) => m.source))
+  const kept = new Map<SetMember, Float32Array[]>()
+  let keptSamples = 0
+  const inputs: SetLevelInput[] = []
+  for (const member of set) {
+    const written = await writtenLevel(folders, member, format)
+    if (written) inputs.push(written)
+    else {
+      const channels = await prepared(folders, member, format)
+      inputs.push(levelInput(channels, format.sampleRate))
+      const size = format.frames * format.channels
+      if (keptSamples + size <= RETAIN_SAMPLES) {
+        kept.set(member, channels)
+        keptSamples += size
+      }
+    }
+    await yieldToOthers()
+  }
+  const levels = matchSetLevels(inputs, CLIP_LIMITS.targetLufs, CLIP_LIMITS.ceilingDbfs)
+
+  const changes: RenditionChange[] = []
+  try {
+    for (const [i, member] of set.entries()) {
+      const r = member.rendition
+      const current =
+        member.renditionFile !== null &&
+        member.gainDb !== null &&
+        r !== null &&
+        sameSetFormat(r.format, format) &&
+        Math.abs(member.gainDb - levels.gainsDb[i]) < GAIN_STEP_DB &&
+        Math.abs(r.loudnessLufs - levels.targetLufs) <= LEVEL_TOLERANCE_LU
+      if (current) continue
+      const channels = kept.get(member) ?? (await prepared(folders, member, format))
+      const written = writeMatchedRendition(
+        channels,
+        format,
+        levels.gainsDb[i],
+        levels.targetLufs,
+        CLIP_LIMITS.ceilingDbfs,
+      )
+      changes.push({
+        member,
+        gainDb: written.gainDb,
+        file: await writeRenditionFile(folders, written.bytes),
+        facts: { format, loudnessLufs: written.loudnessLufs },
       })
-      changes.push({ member, gainDb, file: await writeRenditionFile(folders, bytes) })
+      await yieldToOthers()
     }
   } catch (err) {
     await discardChanges(folders, changes)

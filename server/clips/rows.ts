@@ -21,6 +21,8 @@ export interface ClipRow {
   archived_at: string | null
   original_name: string
   rendition_gain_db: number
+  /** Measured on the rendition itself; null for one written before that was kept. */
+  rendition_loudness_lufs: number | null
   container: Clip['container']
   duration_s: number
   sample_rate: number
@@ -63,6 +65,7 @@ export function clipQuery(knex: Knex) {
       'c.archived_at',
       'c.original_name',
       'c.rendition_gain_db',
+      'c.rendition_loudness_lufs',
       'c.container',
       'c.duration_s',
       'c.sample_rate',
@@ -100,7 +103,7 @@ export const toClip = (r: ClipRow): Clip => ({
   archivedAt: r.archived_at,
   originalName: r.original_name,
   renditionGainDb: r.rendition_gain_db,
-  renditionLufs: r.loudness_lufs + r.rendition_gain_db,
+  renditionLufs: r.rendition_loudness_lufs ?? r.loudness_lufs + r.rendition_gain_db,
   audioUrl: `/api/clips/${r.id}/audio`,
   container: r.container,
   durationS: r.duration_s,

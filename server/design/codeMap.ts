@@ -48,7 +48,9 @@ export function dealCodes(input: SessionDesignInput, spec: CodeSpec): SessionCod
   const ids =
     kind === 'set'
       ? input.recipes
-      : input.clipSets.flatMap((set) => set.clips.map((clip) => clip.clipId))
+      : input.clipSets.flatMap((set) =>
+          [...set.clips, ...(set.twins ?? [])].map((clip) => clip.clipId),
+        )
   const keys = ids
     .flatMap((id) => Array.from({ length: copies }, (_, copy) => ({ id, copy })))
     .map((k) => ({ ...k, key: keyOf(kind, k.id, k.copy) }))

@@ -14,6 +14,12 @@ export interface DesignClip {
 export interface DesignClipSet {
   excerptKey: string
   clips: DesignClip[]
+  /**
+   * Second takes: another recording of a recipe in this set, served where a trial holds that
+   * recipe twice (a triangle's twin, a hidden repeat), so the two servings are not one file.
+   * At most one per recipe; never rated as a first showing.
+   */
+  twins?: DesignClip[]
 }
 
 /** What a session's plans are dealt from: the same input always deals the same plans. */

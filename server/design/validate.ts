@@ -1,5 +1,5 @@
 import { DesignError } from './errors.ts'
-import type { SessionDesignInput } from './types.ts'
+import type { DesignClipSet, Id, SessionDesignInput } from './types.ts'
 
 /** What a format asks of a design: see server/formats. */
 export interface DesignRules {
@@ -46,6 +46,7 @@ export function checkDesign(input: SessionDesignInput, rules: DesignRules): void
       clipIds.add(clip.clipId)
       heard.add(clip.recipeId)
     }
+    checkTwins(set, clipIds)
     // Pairs and triangles compare recipes within a set; a gap would leave pairs unplayable.
     if (rules.clipSets === 'one-of-each') {
       const covered = new Set(set.clips.map((clip) => clip.recipeId))
@@ -59,5 +60,28 @@ export function checkDesign(input: SessionDesignInput, rules: DesignRules): void
   const silent = recipes.find((id) => !heard.has(id))
   if (silent !== undefined) {
     throw new DesignError(`Recipe ${String(silent)} has no clip in the session`)
+  }
+}
+
+/** A second take stands in for a recipe the set already plays, once, and is no other clip. */
+function checkTwins(set: DesignClipSet, clipIds: Set<unknown>): void {
+  const played = new Set(set.clips.map((clip) => clip.recipeId))
+  const twinned = new Set<Id>()
+  for (const twin of set.twins ?? []) {
+    if (!played.has(twin.recipeId)) {
+      throw new DesignError(
+        `Clip ${String(twin.clipId)} is a second take of a recipe the set for excerpt "${set.excerptKey}" does not play`,
+      )
+    }
+    if (twinned.has(twin.recipeId)) {
+      throw new DesignError(
+        `The set for excerpt "${set.excerptKey}" has two second takes of one recipe`,
+      )
+    }
+    if (clipIds.has(twin.clipId)) {
+      throw new DesignError(`Clip ${String(twin.clipId)} is listed twice in the session`)
+    }
+    twinned.add(twin.recipeId)
+    clipIds.add(twin.clipId)
   }
 }

@@ -1,6 +1,7 @@
 import type { Id, PreferenceAnswer, Rating } from '../analysis/index.ts'
 import type { PlannedTrial } from '../design/index.ts'
 import { formatOf } from '../formats/index.ts'
+import { servingsOf } from '../formats/answers'
 import { readAnswer, UnreadableAnswer } from '../answers/stored'
 
 /*
@@ -77,10 +78,14 @@ export function resolvePlayerAnswers(
   for (const stored of answers) {
     const trial = trials[stored.trialIndex]
     const answer = readAnswer(stored, trial)
+    const shown = trial.repeatOf === null ? trial : (trials[trial.repeatOf] ?? trial)
     const context = {
       player,
       trial: stored.trialIndex,
       repeatOf: trial.repeatOf,
+      item: servingsOf(shown)
+        .map((c) => String(c.clipId))
+        .join('+'),
       kind: trial.kind,
       answeredAt: stored.answeredAt,
       comment: '',

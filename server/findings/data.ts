@@ -12,6 +12,7 @@ import {
 import { sessionServedTrials } from '../sessions/servedRecord'
 import { CORRELATED_MEASURES, type ClipMeasureRow } from './objective'
 import { designOf, loadSession, type SessionRow } from '../sessions/rows'
+import { HEADPHONE_EXCLUSION_REASON, headphoneScreening } from './headphoneExclusions'
 
 /** Who is asking: services take this rather than the request. */
 export interface Viewer {
@@ -35,7 +36,12 @@ export interface SessionPlayer {
   done: boolean
   /** Stored answers, readable or not. */
   answered: number
+  /** The analyst's reason, or the headphone rule's; null when the player counts. */
   exclusionReason: string | null
+  /** Who left the player out: an analyst, or the failed headphone check by default. */
+  excludedBy: 'analyst' | 'headphone' | null
+  /** The headphone check failed, whether or not an analyst took the player back in. */
+  headphoneFailed: boolean
 }
 
 /** Everything one session's findings are computed from, with answers already in recipes. */
@@ -141,20 +147,28 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
     }
   }
 
+  const screening = await headphoneScreening(db, session)
   return {
     session,
     recipes: await recipeRefs(db, design.recipeIds),
     attributes: design.attributes,
-    players: invitations.map((i) => ({
-      playerId: i.player_id,
-      code: i.code,
-      level: i.level,
-      instruments: JSON.parse(i.instruments) as string[],
-      started: Boolean(i.started_at) || byInvitation.has(i.invitation_id),
-      done: Boolean(i.completed_at),
-      answered: byInvitation.get(i.invitation_id)?.length ?? 0,
-      exclusionReason: i.reason,
-    })),
+    players: invitations.map((i) => {
+      const headphoneFailed = screening.failed.has(i.invitation_id)
+      const byRule = headphoneFailed && !screening.includedBack.has(i.player_id)
+      return {
+        playerId: i.player_id,
+        code: i.code,
+        level: i.level,
+        instruments: JSON.parse(i.instruments) as string[],
+        started: Boolean(i.started_at) || byInvitation.has(i.invitation_id),
+        done: Boolean(i.completed_at),
+        answered: byInvitation.get(i.invitation_id)?.length ?? 0,
+        // The analyst's own reason stands first: it is the more specific one.
+        exclusionReason: i.reason ?? (byRule ? HEADPHONE_EXCLUSION_REASON : null),
+        excludedBy: i.reason !== null ? 'analyst' : byRule ? 'headphone' : null,
+        headphoneFailed,
+      }
+    }),
     resolved,
     answers: stored.length,
     lastAnswerAt: stored.reduce<string | null>(

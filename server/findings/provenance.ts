@@ -27,6 +27,7 @@ export async function provenanceOf(db: Knex, data: FindingsData): Promise<Findin
     answers: data.answers,
     players: data.players.filter((p) => p.answered > 0).length,
     excluded: data.players.filter((p) => p.exclusionReason !== null).length,
+    headphoneExcluded: data.players.filter((p) => p.excludedBy === 'headphone').length,
     lastAnswerAt: data.lastAnswerAt,
     lastChange: last ? { action: last.action, at: last.at } : null,
   }

@@ -16,7 +16,9 @@ export function reliabilityFindings(
     rule: engine.rule,
     // Every player who answered is listed, so one with no repeats can still be excluded.
     players: players
-      .filter((p) => p.started || byCode.has(p.code) || p.exclusionReason !== null)
+      .filter(
+        (p) => p.started || byCode.has(p.code) || p.exclusionReason !== null || p.headphoneFailed,
+      )
       .map((p) => {
         const r = byCode.get(p.code)
         return {
@@ -28,6 +30,7 @@ export function reliabilityFindings(
           flagged: r?.flagged ?? false,
           excluded: p.exclusionReason !== null,
           exclusionReason: p.exclusionReason,
+          headphoneFailed: p.headphoneFailed,
           reason: r ? r.reason : 'not enough data',
         }
       }),

@@ -17,7 +17,7 @@ import {
   type FindingsData,
   type Viewer,
 } from './data'
-import { designOf, loadSession } from '../sessions/rows'
+import { clipIdsOfSet, designOf, loadSession } from '../sessions/rows'
 
 export type { Viewer }
 
@@ -66,7 +66,7 @@ export async function computeSessionFindings(
   }
   const answersInGroup = players.reduce((sum, p) => sum + p.answered, 0)
 
-  const clips = designOf(session).clipSets.flatMap((s) => s.clipIds)
+  const clips = designOf(session).clipSets.flatMap(clipIdsOfSet)
   const timePoints = await loadTimePoints(db, session, group)
   const findings: SessionFindings = {
     session: {

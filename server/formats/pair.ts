@@ -6,6 +6,7 @@ import {
   checkCode,
   clipOfRecipe,
   recipeOfCode,
+  secondTake,
   sortedRecord,
 } from './shared'
 import { pairAnswer } from '../../shared/schemas/rating'
@@ -22,7 +23,6 @@ export const pairFormat: FormatModule<'pair'> = {
   clipSets: 'one-of-each',
   ratesAttributes: true,
   findings: ['preferences'],
-  alikeServings: false,
   noPreferenceOption: true,
   codes: { of: 'clip', showings: 1 },
   cautions: [LISTENING_CAUTION],
@@ -32,13 +32,19 @@ export const pairFormat: FormatModule<'pair'> = {
     const { recipes, clipSets, duplicates, seed } = input
     const options = { playerIndex: p, seed, sets: clipSets.length, duplicates }
     return pairTrials(recipes, options).map((t) => {
-      const copy = t.repeatOf === null ? 0 : 1
-      const clips = clipSets[t.set].clips
+      const set = clipSets[t.set]
+      // A repeat plays each recipe's second take where the set has one.
+      const serve = (recipeId: typeof t.a) => {
+        const clip = clipOfRecipe(set.clips, recipeId)
+        return t.repeatOf === null
+          ? blindClip(codes, clip, 0)
+          : blindClip(codes, secondTake(set, clip), 1)
+      }
       return {
         kind: 'pair',
-        excerptKey: clipSets[t.set].excerptKey,
-        a: blindClip(codes, clipOfRecipe(clips, t.a), copy),
-        b: blindClip(codes, clipOfRecipe(clips, t.b), copy),
+        excerptKey: set.excerptKey,
+        a: serve(t.a),
+        b: serve(t.b),
         repeatOf: t.repeatOf,
       }
     })

@@ -21,7 +21,6 @@ export const playtestFormat: FormatModule<'playtest'> = {
   clipSets: 'none',
   ratesAttributes: true,
   findings: ['attributes', 'aging'],
-  alikeServings: false,
   noPreferenceOption: false,
   codes: { of: 'set', showings: 1 },
   cautions: [STRING_FITTING_CAUTION],

@@ -6,7 +6,7 @@ import {
   williamsRowCount,
 } from '../design/index.ts'
 import { LISTENING_CAUTION } from '../../shared/cautions'
-import { blindClip, checkSliders, collectSliders, sortedRecord } from './shared'
+import { blindClip, checkSliders, collectSliders, secondTake, sortedRecord } from './shared'
 import { ratingAnswer } from '../../shared/schemas/rating'
 import type { FormatModule } from './types'
 
@@ -21,7 +21,6 @@ export const ratingFormat: FormatModule<'rating'> = {
   clipSets: 'any',
   ratesAttributes: true,
   findings: ['attributes', 'objective', 'aging'],
-  alikeServings: false,
   noPreferenceOption: false,
   codes: { of: 'clip', showings: 1 },
   cautions: [LISTENING_CAUTION],
@@ -41,12 +40,19 @@ export const ratingFormat: FormatModule<'rating'> = {
       ),
     )
     const random = createRandom(deriveSeed(seed, `rating/player/${p}`))
-    return placeRepeats(main, duplicates, random, (t) => t).map(({ item, repeatOf }) => ({
-      kind: 'rating',
-      excerptKey: clipSets[item.set].excerptKey,
-      clip: blindClip(codes, item.clip, repeatOf === null ? 0 : 1),
-      repeatOf,
-    }))
+    // A repeat waits for its set's screen to end: wedged inside, it would split the set.
+    const sameScreen = (a: (typeof main)[number], b: (typeof main)[number]) => a.set === b.set
+    return placeRepeats(main, duplicates, random, (t) => t, sameScreen).map(
+      ({ item, repeatOf }) => ({
+        kind: 'rating',
+        excerptKey: clipSets[item.set].excerptKey,
+        clip:
+          repeatOf === null
+            ? blindClip(codes, item.clip, 0)
+            : blindClip(codes, secondTake(clipSets[item.set], item.clip), 1),
+        repeatOf,
+      }),
+    )
   },
 
   servings: (t) => [t.clip],

@@ -1,4 +1,4 @@
-import type { BlindClip, DesignClip, Id, SessionCodes } from '../design/index.ts'
+import type { BlindClip, DesignClip, DesignClipSet, Id, SessionCodes } from '../design/index.ts'
 import type { ResolvedAnswers } from '../findings/answersToRatings'
 import type { AddProblem, AnswerContext } from './types'
 
@@ -42,6 +42,14 @@ export const blindClip = (codes: SessionCodes, clip: DesignClip, copy: number): 
 export const clipOfRecipe = (clips: DesignClip[], recipeId: Id) =>
   clips.find((clip) => clip.recipeId === recipeId) as DesignClip
 
+/**
+ * The clip behind a recipe's second appearance (a triangle's twin, a hidden repeat): the set's
+ * second take of that recipe when it has one, so the two servings are different recordings and
+ * no comparison of the files pairs them; otherwise the same clip again.
+ */
+export const secondTake = (set: DesignClipSet, clip: DesignClip): DesignClip =>
+  set.twins?.find((t) => t.recipeId === clip.recipeId) ?? clip
+
 /** Line-scale sliders: at least one moved, every key the session's. */
 export function checkSliders(
   add: AddProblem,
@@ -68,7 +76,8 @@ export function collectSliders(
     const value = values[attribute]
     if (value === undefined) continue
     const { recipe, clip, code, excerpt, comment } = rated
-    out.ratings.push({ player: context.player, recipe, attribute, value, clip })
+    const item = context.item || undefined
+    out.ratings.push({ player: context.player, recipe, attribute, value, clip, item })
     out.rows.push({
       ...context,
       excerpt,

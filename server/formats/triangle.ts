@@ -1,6 +1,6 @@
 import { TRIANGLE_BLOCK, triangleTrials, type BlindClip, type Id } from '../design/index.ts'
 import { LISTENING_CAUTION } from '../../shared/cautions'
-import { blindClip, checkCode, clipOfRecipe } from './shared'
+import { blindClip, checkCode, clipOfRecipe, secondTake } from './shared'
 import { triangleAnswer } from '../../shared/schemas/rating'
 import type { FormatModule } from './types'
 
@@ -15,7 +15,6 @@ export const triangleFormat: FormatModule<'triangle'> = {
   clipSets: 'one-of-each',
   ratesAttributes: false,
   findings: ['triangle'],
-  alikeServings: true,
   noPreferenceOption: false,
   // One clip is served twice in a trial, and identical codes would point at the odd one.
   codes: { of: 'clip', showings: 2 },
@@ -26,14 +25,19 @@ export const triangleFormat: FormatModule<'triangle'> = {
     const { recipes, clipSets, duplicates, seed } = input
     const options = { playerIndex: p, seed, sets: clipSets.length, duplicates }
     return triangleTrials(recipes, options).map((t) => {
-      // The doubled recipe's two servings take consecutive showings: 0 and 1, or 2 and 3.
-      const served = new Map<Id, number>()
+      // The doubled recipe's second serving is its second take where the set has one (its own
+      // recording); otherwise the same clip under the next showing's code: 0 and 1, or 2 and 3.
+      const served = new Set<Id>()
       const base = t.repeatOf === null ? 0 : 2
-      const clips = clipSets[t.set].clips
+      const set = clipSets[t.set]
       const samples = t.samples.map((recipeId) => {
-        const copy = base + (served.get(recipeId) ?? 0)
-        served.set(recipeId, copy - base + 1)
-        return blindClip(codes, clipOfRecipe(clips, recipeId), copy)
+        const clip = clipOfRecipe(set.clips, recipeId)
+        if (!served.has(recipeId)) {
+          served.add(recipeId)
+          return blindClip(codes, clip, base)
+        }
+        const twin = secondTake(set, clip)
+        return blindClip(codes, twin, twin === clip ? base + 1 : base)
       }) as [BlindClip, BlindClip, BlindClip]
       const excerptKey = clipSets[t.set].excerptKey
       const { order, odd, repeatOf } = t

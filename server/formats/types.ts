@@ -40,6 +40,11 @@ export interface AnswerContext {
   player: string | number
   trial: number
   repeatOf: number | null
+  /**
+   * The stimulus this trial shows: its clips, or for a hidden repeat its first showing's, so a
+   * repeat played from a second take is still paired with what it repeats.
+   */
+  item: string
   kind: SessionFormat
   answeredAt: string
   comment: string
@@ -63,11 +68,6 @@ export interface FormatModule<K extends SessionFormat = SessionFormat> {
   ratesAttributes: boolean
   /** The parts of the findings this format's answers feed (see server/findings/service.ts). */
   findings: readonly FindingsSection[]
-  /**
-   * Whether a trial's servings must look alike to the player (same length, no waveform): a
-   * triangle serves one recording twice, and a drawing would point at the odd one.
-   */
-  alikeServings: boolean
   /** Whether the session may let players answer "no preference". */
   noPreferenceOption: boolean
   /** What a blind code stands for, and how many showings one item needs in a first pass. */

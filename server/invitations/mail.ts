@@ -16,12 +16,13 @@ const WHAT_YOU_DO: Record<SessionFormat, string> = {
     'You will receive coded sets of strings, play each set on your own instrument and rate it.',
 }
 
+/** Only the session's player title and message: the staff name may name the recipes. */
 export interface InvitationMailInput {
   kind: InvitationMailKind
   firstName: string | null
-  sessionName: string
+  playerTitle: string
   format: SessionFormat
-  instructions: string
+  playerMessage: string
   deadline: string
   url: string
   answered: number
@@ -33,16 +34,16 @@ export function invitationMail(m: InvitationMailInput) {
   const paragraphs = [
     reminder
       ? m.answered > 0
-        ? `A reminder about "${m.sessionName}": you have answered ${m.answered} of ${m.trialCount} trials so far. The link picks up where you left off.`
-        : `A reminder about "${m.sessionName}": your answers would still be very welcome.`
-      : `You are invited to take part in a blind session on Ringdown: "${m.sessionName}". Nothing in it tells you which string is which, so please judge only what you hear and feel.`,
+        ? `A reminder about "${m.playerTitle}": you have answered ${m.answered} of ${m.trialCount} trials so far. The link picks up where you left off.`
+        : `A reminder about "${m.playerTitle}": your answers would still be very welcome.`
+      : `You are invited to take part in a blind session on Ringdown: "${m.playerTitle}". Nothing in it tells you which string is which, so please judge only what you hear and feel.`,
     WHAT_YOU_DO[m.format],
-    ...(m.instructions ? [`Instructions: ${m.instructions}`] : []),
+    ...(m.playerMessage ? [`From the organisers: ${m.playerMessage}`] : []),
     `Please finish by ${m.deadline} (end of that day, UTC). The link below is yours alone and stops working after the deadline.`,
     ...formatOf(m.format).cautions,
   ]
   return renderMail({
-    subject: reminder ? `Reminder: ${m.sessionName}` : `Invitation: ${m.sessionName}`,
+    subject: reminder ? `Reminder: ${m.playerTitle}` : `Invitation: ${m.playerTitle}`,
     greeting: m.firstName ? `Hello ${m.firstName},` : 'Hello,',
     paragraphs,
     action: { label: reminder ? 'Continue your session' : 'Open your session', url: m.url },

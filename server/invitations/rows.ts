@@ -113,9 +113,9 @@ export async function queueInvitationMail(
   const mail = invitationMail({
     kind,
     firstName: firstNameOf(player.name),
-    sessionName: session.name,
+    playerTitle: session.player_title,
     format: session.format,
-    instructions: session.instructions,
+    playerMessage: session.player_message,
     deadline: session.deadline,
     url: invitationUrl(ctx, inv, session),
     ...progress,

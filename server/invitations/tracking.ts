@@ -13,7 +13,27 @@ import {
   type InvitationDbRow,
   type InvitedPlayer,
 } from './rows'
-import type { InvitationRow } from '../../shared/schemas/sessions'
+import {
+  checkRows,
+  hasHeadphoneCheck,
+  recordOf,
+  sessionHeadphoneRecords,
+  type HeadphoneRecord,
+} from '../player/headphoneRecord'
+import type {
+  HeadphoneCheckState,
+  InvitationRow,
+  SessionFormat,
+} from '../../shared/schemas/sessions'
+
+/** The check's standing for staff: the outcome only, never the tones or the player's picks. */
+function checkState(
+  format: SessionFormat,
+  record: HeadphoneRecord | undefined,
+): HeadphoneCheckState | null {
+  if (!hasHeadphoneCheck(format)) return null
+  return record?.status ?? 'not_done'
+}
 
 export async function listInvitations(
   knex: Knex,
@@ -33,14 +53,16 @@ export async function listInvitations(
     rows.map((r) => r.id),
   )
   const trialCount = await trialCountOf(knex, session)
-  return rows.map((r) =>
-    toInvitationRow(r, { id: r.player_id, code: r.code, name: r.name, email: r.email }, session, {
-      now,
-      answered: answered.get(r.id) ?? 0,
-      trialCount,
-      personal,
-    }),
-  )
+  const checks = await sessionHeadphoneRecords(knex, sessionId)
+  return rows.map((r) => ({
+    ...toInvitationRow(
+      r,
+      { id: r.player_id, code: r.code, name: r.name, email: r.email },
+      session,
+      { now, answered: answered.get(r.id) ?? 0, trialCount, personal },
+    ),
+    headphoneCheck: checkState(session.format, checks.get(r.id)),
+  }))
 }
 
 /** One invitation with its session, player and progress: what its mail and its row need. */
@@ -58,9 +80,12 @@ export async function invitationContext(trx: Knex, id: number) {
 /** The row staff see for one invitation, as of now. */
 export async function rowOf(ctx: AppContext, id: number): Promise<InvitationRow> {
   const { inv, session, player, progress } = await invitationContext(ctx.knex, id)
-  return toInvitationRow(inv, player, session, {
-    now: ctx.clock.now(),
-    ...progress,
-    personal: true,
-  })
+  return {
+    ...toInvitationRow(inv, player, session, {
+      now: ctx.clock.now(),
+      ...progress,
+      personal: true,
+    }),
+    headphoneCheck: checkState(session.format, recordOf(await checkRows(ctx.knex, inv.id))),
+  }
 }

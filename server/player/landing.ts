@@ -67,9 +67,9 @@ export async function playerLanding(ctx: AppContext, token: string): Promise<Pla
     .where({ id: inv.player_id })
     .first('name')
   return {
-    sessionName: session.name,
+    playerTitle: session.player_title,
     format: session.format,
-    instructions: session.instructions,
+    playerMessage: session.player_message,
     deadline: session.deadline,
     status: invitationStatus(inv, session, now),
     cautions: [...formatOf(session.format).cautions],

@@ -7,11 +7,9 @@ import { servedTrials } from '../sessions/servedRecord'
 import { playerFacing } from '../sessions/plans'
 import { formatOf } from '../formats/index.ts'
 import { servingsOf } from '../formats/answers'
-import type { SessionRow } from '../sessions/rows'
+import { clipIdsOfSet, designOf, type SessionRow } from '../sessions/rows'
+import { setPicture, type Peaks, type ScreenPicture } from './picture'
 import type { PlayerClipView, PlayerPlanView, PlayerTrialView } from '../../shared/schemas/rating'
-
-/** Waveforms are drawn on a phone at most this many columns wide; more is only bytes. */
-export const PEAK_BUCKETS = 600
 
 // A player's served record is kept between their saves; the key changes whenever the session
 // row does, so a design edited before any answer is never served from an old record.
@@ -46,29 +44,6 @@ export function screensOf(trials: readonly PlannedTrial[]): number[] {
     previous = set
     return screen
   })
-}
-
-export function downsamplePeaks(
-  peaks: { min: number[]; max: number[] },
-  buckets = PEAK_BUCKETS,
-): { min: number[]; max: number[] } {
-  const n = Math.min(peaks.min.length, peaks.max.length)
-  if (n <= buckets) return { min: peaks.min.slice(0, n), max: peaks.max.slice(0, n) }
-  const min: number[] = []
-  const max: number[] = []
-  for (let b = 0; b < buckets; b++) {
-    const from = Math.floor((b * n) / buckets)
-    const to = Math.floor(((b + 1) * n) / buckets)
-    let lo = Infinity
-    let hi = -Infinity
-    for (let i = from; i < to; i++) {
-      lo = Math.min(lo, peaks.min[i])
-      hi = Math.max(hi, peaks.max[i])
-    }
-    min.push(lo)
-    max.push(hi)
-  }
-  return { min, max }
 }
 
 const servingKey = (clipId: number, code: number) => `${clipId}/${code}`
@@ -106,22 +81,49 @@ export async function audioRefs(
   return load()
 }
 
-interface ClipFacts {
-  duration: number
-  peaks: { min: number[]; max: number[] }
-}
-
-async function clipFacts(db: Knex, ids: number[]): Promise<Map<number, ClipFacts>> {
+/**
+ * One picture per matched set, keyed by every clip of the set (twins too), so every screen of
+ * a set draws the same envelope whichever code is selected. The design's sets are locked once
+ * anyone has answered, so the picture a player sees does not change under them.
+ */
+async function setPictures(
+  db: Knex,
+  session: SessionRow,
+): Promise<Map<number, ScreenPicture | null>> {
+  const sets = designOf(session).clipSets.map(clipIdsOfSet)
+  const ids = [...new Set(sets.flat())]
   if (ids.length === 0) return new Map()
-  const rows: { id: number; duration_s: number; peaks: string }[] = await db('clips')
+  const rows: {
+    id: number
+    duration_s: number
+    peaks: string
+    rendition_gain_db: number | null
+    rendition_duration_s: number | null
+  }[] = await db('clips')
     .whereIn('id', ids)
-    .select('id', 'duration_s', 'peaks')
-  return new Map(
+    .select('id', 'duration_s', 'peaks', 'rendition_gain_db', 'rendition_duration_s')
+  const facts = new Map(
     rows.map((r) => [
       r.id,
-      { duration: r.duration_s, peaks: downsamplePeaks(JSON.parse(r.peaks) as ClipFacts['peaks']) },
+      {
+        duration: r.duration_s,
+        peaks: JSON.parse(r.peaks) as Peaks,
+        gainDb: r.rendition_gain_db ?? 0,
+      },
     ]),
   )
+  // Renditions of a set share one length; the picture spans it (older rows: the shortest take).
+  const lengthOf = new Map(rows.map((r) => [r.id, r.rendition_duration_s]))
+  const byClip = new Map<number, ScreenPicture | null>()
+  for (const set of sets) {
+    const lengths = set.map((id) => lengthOf.get(id)).filter((d): d is number => !!d)
+    const picture = setPicture(
+      set.flatMap((id) => facts.get(id) ?? []),
+      lengths.length ? Math.min(...lengths) : undefined,
+    )
+    for (const id of set) byClip.set(id, picture)
+  }
+  return byClip
 }
 
 export async function playerPlanView(ctx: AppContext, token: string): Promise<PlayerPlanView> {
@@ -132,39 +134,26 @@ export async function playerPlanView(ctx: AppContext, token: string): Promise<Pl
     .flatMap(servingsOf)
     .map((c) => ({ clipId: Number(c.clipId), code: c.code }))
   const refs = await audioRefs(ctx.knex, inv.id, servings)
-  const facts = await clipFacts(ctx.knex, [...new Set(servings.map((s) => s.clipId))])
+  const pictures = await setPictures(ctx.knex, session)
   const screens = screensOf(trials)
 
-  const clipView = (c: { clipId: string | number; code: number }): PlayerClipView => {
-    const id = Number(c.clipId)
-    const f = facts.get(id)
-    return {
-      code: c.code,
-      audioUrl: `/api/player/audio/${refs.get(servingKey(id, c.code))}`,
-      duration: f?.duration ?? 0,
-      peaks: f?.peaks ?? { min: [], max: [] },
-    }
-  }
+  // A code and an opaque address: no length, level or picture of its own.
+  const clipView = (c: { clipId: string | number; code: number }): PlayerClipView => ({
+    code: c.code,
+    audioUrl: `/api/player/audio/${refs.get(servingKey(Number(c.clipId), c.code))}`,
+  })
   const format = formatOf(session.format)
   const trialView = (t: PlannedTrial, index: number): PlayerTrialView => {
-    const clips = servingsOf(t).map(clipView)
+    const served = servingsOf(t)
     return {
       index,
       kind: t.kind,
       screen: screens[index],
-      clips: format.alikeServings ? alike(clips) : clips,
+      clips: served.map(clipView),
+      picture: served.length ? (pictures.get(Number(served[0].clipId)) ?? null) : null,
       setCode: format.setCode(t),
     }
   }
 
   return { ...playerFacing(session), trials: trials.map(trialView) }
-}
-
-/**
- * Two of a triangle's samples are the same recording: identical waveforms or lengths would
- * point at the odd one without listening. Each sample gets the longest length and no drawing.
- */
-function alike(clips: PlayerClipView[]): PlayerClipView[] {
-  const duration = Math.max(...clips.map((c) => c.duration))
-  return clips.map((c) => ({ ...c, duration, peaks: { min: [], max: [] } }))
 }

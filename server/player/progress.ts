@@ -1,5 +1,4 @@
 import type { AppContext } from '../context'
-import { validationFailed } from '../errors'
 import {
   assertConsent,
   assertStillOpen,
@@ -12,17 +11,11 @@ import { readAnswer } from '../answers/stored'
 import { invitationStatus } from '../invitations/rows'
 import { formatOf } from '../formats/index.ts'
 import { firstNameOf } from '../invitations/mail'
-import { HEADPHONE_PASS, type PlayerState } from '../../shared/schemas/rating'
+import type { PlayerState } from '../../shared/schemas/rating'
+import { checkRows, playerHeadphoneOf, recordOf } from './headphoneRecord'
 
-/** Passing needs the full check and at least the pass mark's share of it right. */
-export function headphonePassed(correct: number, trials: number): boolean {
-  return (
-    trials >= HEADPHONE_PASS.trials &&
-    correct * HEADPHONE_PASS.trials >= HEADPHONE_PASS.correct * trials
-  )
-}
-
-async function stateOf(
+/** Where the player stands, as every step before the trials answers it. */
+export async function stateOf(
   ctx: AppContext,
   { inv, session, canAnswer }: PlayerAccess,
 ): Promise<PlayerState> {
@@ -40,20 +33,12 @@ async function stateOf(
     .knex('players')
     .where({ id: inv.player_id })
     .first('name')
-  const headphone =
-    inv.headphone_trials === null || inv.headphone_correct === null
-      ? null
-      : {
-          correct: inv.headphone_correct,
-          trials: inv.headphone_trials,
-          passed: headphonePassed(inv.headphone_correct, inv.headphone_trials),
-          attempts: inv.headphone_attempts,
-        }
+  const headphone = playerHeadphoneOf(recordOf(await checkRows(ctx.knex, inv.id)), ctx.clock.now())
   return {
     landing: {
-      sessionName: session.name,
+      playerTitle: session.player_title,
       format: session.format,
-      instructions: session.instructions,
+      playerMessage: session.player_message,
       deadline: session.deadline,
       status: invitationStatus(inv, session, ctx.clock.now()),
       cautions: [...formatOf(session.format).cautions],
@@ -108,26 +93,6 @@ export const giveConsent = (ctx: AppContext, token: string) =>
     consent_at: inv.consent_at ?? now,
     opened_at: inv.opened_at ?? now,
   }))
-
-/** The latest check counts and every attempt is counted, so a retry cannot hide a failure. */
-export function recordHeadphoneCheck(
-  ctx: AppContext,
-  token: string,
-  check: { correct: number; trials: number },
-): Promise<PlayerState> {
-  if (check.correct > check.trials)
-    throw validationFailed('More correct answers than trials', {
-      fields: { correct: [`At most ${check.trials}`] },
-    })
-  return step(ctx, token, ({ inv }) => {
-    assertConsent(inv)
-    return {
-      headphone_correct: check.correct,
-      headphone_trials: check.trials,
-      headphone_attempts: inv.headphone_attempts + 1,
-    }
-  })
-}
 
 export const confirmLevel = (ctx: AppContext, token: string) =>
   step(ctx, token, ({ inv }, now) => {

@@ -2,7 +2,8 @@ import type { Response } from 'express'
 import type { AppContext } from '../context'
 import { route, type RouteDef } from '../http/routeTable'
 import { sendAudio } from '../http/sendAudio'
-import { confirmLevel, giveConsent, playerState, recordHeadphoneCheck } from './progress'
+import { confirmLevel, giveConsent, playerState } from './progress'
+import { recordHeadphoneCheck, startHeadphoneCheck } from './headphone'
 import { playerPlanView } from './plan'
 import { playerAudioBytes } from './audio'
 import { saveAnswer } from './saveAnswer'
@@ -33,6 +34,13 @@ export function playerFlowRoutes(ctx: AppContext): RouteDef[] {
       roles: 'public',
       body: tokenBody,
       handler: async (_req, res, { body }) => json(res, await giveConsent(ctx, body.token)),
+    }),
+    route({
+      method: 'post',
+      path: '/headphone/start',
+      roles: 'public',
+      body: tokenBody,
+      handler: async (_req, res, { body }) => json(res, await startHeadphoneCheck(ctx, body.token)),
     }),
     route({
       method: 'post',

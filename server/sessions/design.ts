@@ -1,7 +1,8 @@
 /*
  * Creating a session and changing it. A design is checked before it is stored; a closed session
- * no longer changes, and once players have answered the design is locked (names, instructions
- * and the deadline may still change).
+ * no longer changes, and once players have answered the design is locked (names, the player
+ * title and message, and the deadline may still change). The words players see are checked
+ * against the session's recipes on every change that could make them give a recipe away.
  */
 import { randomBytes } from 'node:crypto'
 import type { AppContext } from '../context'
@@ -9,7 +10,15 @@ import { conflict } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { refixSessionPlans } from './servedRecord'
 import { assertPossible, reviewDesign } from './designReview'
-import { answersCount, designOf, loadSession, type SessionRow, type StoredDesign } from './rows'
+import type { PlayerTexts } from './playerWords'
+import {
+  answersCount,
+  designOf,
+  loadSession,
+  playerWordsOf,
+  type SessionRow,
+  type StoredDesign,
+} from './rows'
 import { getSession } from './read'
 import {
   LOCKED_DESIGN_FIELDS,
@@ -20,7 +29,10 @@ import {
 
 export const newSeed = () => randomBytes(8).toString('hex')
 
-function storedOf(body: SessionDesignParsed, seed: string): StoredDesign & { deadline: string } {
+function storedOf(
+  body: SessionDesignParsed,
+  seed: string,
+): StoredDesign & { deadline: string; playerWords: PlayerTexts } {
   return {
     format: body.format,
     recipeIds: body.recipeIds,
@@ -29,6 +41,7 @@ function storedOf(body: SessionDesignParsed, seed: string): StoredDesign & { dea
     duplicates: body.duplicates,
     seed,
     deadline: body.deadline,
+    playerWords: { playerTitle: body.playerTitle, playerMessage: body.playerMessage },
   }
 }
 
@@ -53,7 +66,8 @@ export async function createSession(
       attributes: JSON.stringify(body.attributes),
       duplicates: body.duplicates,
       allow_no_preference: body.allowNoPreference,
-      instructions: body.instructions,
+      player_title: body.playerTitle,
+      player_message: body.playerMessage,
       deadline: body.deadline,
       reminder_days_before: body.reminderDaysBefore,
       parent_session_id: extra.parentSessionId ?? null,
@@ -82,7 +96,8 @@ const COLUMNS: Record<keyof UpdateSessionBody, keyof SessionRow> = {
   attributes: 'attributes',
   duplicates: 'duplicates',
   allowNoPreference: 'allow_no_preference',
-  instructions: 'instructions',
+  playerTitle: 'player_title',
+  playerMessage: 'player_message',
   deadline: 'deadline',
   reminderDaysBefore: 'reminder_days_before',
   timePointLabel: 'time_point_label',
@@ -113,18 +128,20 @@ export async function updateSession(
     const lockedTouched = LOCKED_DESIGN_FIELDS.filter((f) => touched.includes(COLUMNS[f]))
     if (lockedTouched.length > 0 && (await answersCount(trx, id)) > 0) {
       throw conflict(
-        'Players have already answered, so the design is locked; instructions, deadline and names can still change',
+        'Players have already answered, so the design is locked; names, player title and message, and deadline can still change',
         Object.fromEntries(
           lockedTouched.map((f) => [f, ['Locked: players have already answered']]),
         ),
       )
     }
-    if (lockedTouched.length > 0 || changes.deadline !== undefined) {
-      const merged = designOf({ ...row, ...changes } as SessionRow)
+    // Recipes and player words are checked together: new recipes can make old words telling.
+    const wordsTouched = ['player_title', 'player_message'].some((c) => touched.includes(c))
+    if (lockedTouched.length > 0 || changes.deadline !== undefined || wordsTouched) {
+      const mergedRow = { ...row, ...changes } as SessionRow
       const deadline = (changes.deadline as string | undefined) ?? row.deadline
       const review = await reviewDesign(
         trx,
-        { ...merged, deadline },
+        { ...designOf(mergedRow), deadline, playerWords: playerWordsOf(mergedRow) },
         changes.deadline !== undefined ? now : null,
       )
       assertPossible(review)

@@ -2,8 +2,11 @@ import type { Knex } from 'knex'
 import { validationFailed } from '../errors'
 import { DesignError } from '../design/index.ts'
 import { buildPlayerPlan, sessionCodes, validateDesign } from '../formats/index.ts'
-import { designInput, type StoredDesign } from './rows'
+import { clipIdsOfSet, designInput, type StoredDesign } from './rows'
+import { reviewTakes, servesTwice } from './takes'
 import { formatOf } from '../formats/index.ts'
+import { reviewPlayerWords, type PlayerTexts } from './playerWordsReview'
+import { reviewSetFormats } from './setFormats'
 import type { ResolvedClipSet } from '../../shared/schemas/sessions'
 
 interface ClipInfo {
@@ -26,6 +29,8 @@ export interface DesignReview {
   clipSets: ResolvedClipSet[]
   /** Trials per player, duplicates included; 0 while the design has errors. */
   trialCount: number
+  /** Sets where a recipe served twice has one take: opening asks the designer to accept it. */
+  sameTake: string[]
 }
 
 const recipeLabel = (name: string, version: number) => (version > 1 ? `${name} v${version}` : name)
@@ -38,12 +43,13 @@ const today = (now: Date) => now.toISOString().slice(0, 10)
  */
 export async function reviewDesign(
   db: Knex,
-  design: StoredDesign & { deadline: string },
+  design: StoredDesign & { deadline: string; playerWords?: PlayerTexts },
   now: Date | null,
 ): Promise<DesignReview> {
   const errors: Record<string, string[]> = {}
   const fail = (field: string, message: string) => (errors[field] ??= []).push(message)
   const warnings: string[] = []
+  const sameTake: string[] = []
 
   const recipeRows: { id: number; name: string; version: number; archived_at: string | null }[] =
     design.recipeIds.length
@@ -78,6 +84,9 @@ export async function reviewDesign(
         if (seen.has(id)) fail('clipSets', `Clip ${id} is in two sets`)
         seen.add(id)
       }
+      const takes = { ...set, label, matchKey: set.clips[0]?.matchKey ?? '' }
+      const single = reviewTakes(takes, servesTwice(format, design.duplicates), seen, fail)
+      if (single) sameTake.push(single)
       const keys = new Set(set.clips.map((c) => c.matchKey))
       if (keys.size > 1)
         fail(
@@ -99,6 +108,7 @@ export async function reviewDesign(
       }
     }
   }
+  const setFormats = await reviewSetFormats(db, clipSets, fail, warnings)
   if (format.findings.includes('attributes') && design.attributes.length === 0)
     fail('attributes', 'Choose at least one attribute to rate')
   if (now && design.deadline < today(now))
@@ -106,10 +116,15 @@ export async function reviewDesign(
 
   let trialCount = 0
   if (Object.keys(errors).length === 0) {
-    const recipeOfClip = new Map(clipSets.flatMap((s) => s.clips.map((c) => [c.id, c.recipeId])))
+    const recipeOfClip = new Map(
+      clipSets.flatMap((s) => [...s.clips, ...s.twins].map((c) => [c.id, c.recipeId])),
+    )
     trialCount = countTrials(design, recipeOfClip, fail)
   }
-  return { errors, warnings, recipes, clipSets: clipSets.map(stripMatch), trialCount }
+  // After the trial count: words players must not see never make the plan impossible.
+  await reviewPlayerWords(db, design.recipeIds, design.playerWords, fail)
+  const resolved = clipSets.map((s) => ({ ...stripMatch(s), format: setFormats.get(s) }))
+  return { errors, warnings, recipes, clipSets: resolved, trialCount, sameTake }
 }
 
 /** Throws the review's errors as one 422 with messages at their fields. */
@@ -145,20 +160,24 @@ function countTrials(
   }
 }
 
-type SetWithMatch = Omit<ResolvedClipSet, 'clips'> & {
-  clips: (ResolvedClipSet['clips'][number] & { matchKey: string })[]
+type ClipWithMatch = ResolvedClipSet['clips'][number] & { matchKey: string }
+type SetWithMatch = Omit<ResolvedClipSet, 'clips' | 'twins'> & {
+  clips: ClipWithMatch[]
+  twins: ClipWithMatch[]
+  twinClipIds: number[]
 }
 
-const setLabel = (s: Omit<ResolvedClipSet, 'clips'>) =>
+const setLabel = (s: Pick<ResolvedClipSet, 'excerptName' | 'performerCode' | 'instrumentCode'>) =>
   `${s.excerptName} · ${s.performerCode} · ${s.instrumentCode}`
 
 const stripMatch = (s: SetWithMatch): ResolvedClipSet => ({
   ...s,
   clips: s.clips.map(({ matchKey: _m, ...c }) => c),
+  twins: s.twins.map(({ matchKey: _m, ...c }) => c),
 })
 
 async function resolveSets(db: Knex, design: StoredDesign): Promise<SetWithMatch[]> {
-  const ids = [...new Set(design.clipSets.flatMap((s) => s.clipIds))]
+  const ids = [...new Set(design.clipSets.flatMap(clipIdsOfSet))]
   const rows: ClipInfo[] = ids.length
     ? await db('clips as c')
         .join('recipes as r', 'r.id', 'c.recipe_id')
@@ -177,30 +196,33 @@ async function resolveSets(db: Knex, design: StoredDesign): Promise<SetWithMatch
         )
     : []
   const byId = new Map(rows.map((r) => [r.id, r]))
+  const resolve = (id: number): ClipWithMatch[] => {
+    const r = byId.get(id)
+    return r
+      ? [
+          {
+            id: r.id,
+            recipeId: r.recipe_id,
+            recipeName: recipeLabel(r.recipe_name, r.recipe_version),
+            originalName: r.original_name,
+            archived: r.archived_at !== null,
+            matchKey: `${r.excerpt_name}|${r.performer_code}|${r.instrument_code}`,
+          },
+        ]
+      : []
+  }
   return design.clipSets.map((spec) => {
-    const clips = spec.clipIds.flatMap((id) => {
-      const r = byId.get(id)
-      return r
-        ? [
-            {
-              id: r.id,
-              recipeId: r.recipe_id,
-              recipeName: recipeLabel(r.recipe_name, r.recipe_version),
-              originalName: r.original_name,
-              archived: r.archived_at !== null,
-              matchKey: `${r.excerpt_name}|${r.performer_code}|${r.instrument_code}`,
-            },
-          ]
-        : []
-    })
+    const clips = spec.clipIds.flatMap(resolve)
     const first = clips.length ? byId.get(clips[0].id)! : null
     return {
       key: spec.key,
       clipIds: spec.clipIds,
+      twinClipIds: spec.twinClipIds ?? [],
       excerptName: first?.excerpt_name ?? '',
       performerCode: first?.performer_code ?? '',
       instrumentCode: first?.instrument_code ?? '',
       clips,
+      twins: (spec.twinClipIds ?? []).flatMap(resolve),
     }
   })
 }

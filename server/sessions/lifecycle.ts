@@ -4,10 +4,10 @@
  */
 import type { Knex } from 'knex'
 import type { AppContext } from '../context'
-import { conflict } from '../errors'
+import { conflict, validationFailed } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { assertPossible, reviewDesign } from './designReview'
-import { designOf, loadSession, type SessionRow } from './rows'
+import { designOf, loadSession, playerWordsOf, type SessionRow } from './rows'
 import { getSession } from './read'
 import type { SessionDetail } from '../../shared/schemas/sessions'
 
@@ -18,7 +18,8 @@ interface Step {
   action: string
   /** Why the step cannot be taken from each other status. */
   refusals: Partial<Record<SessionRow['status'], string>>
-  check?: (trx: Knex, row: SessionRow, now: Date) => Promise<void>
+  /** Refuses by throwing; what it returns goes into the step's audit entry. */
+  check?: (trx: Knex, row: SessionRow, now: Date) => Promise<Record<string, unknown> | void>
 }
 
 async function step(ctx: AppContext, id: number, actor: Actor, s: Step): Promise<SessionDetail> {
@@ -26,16 +27,26 @@ async function step(ctx: AppContext, id: number, actor: Actor, s: Step): Promise
   await ctx.knex.transaction(async (trx) => {
     const row = await loadSession(trx, id)
     if (row.status !== s.from) throw conflict(s.refusals[row.status] ?? 'Not possible now')
-    await s.check?.(trx, row, now)
+    const details = (await s.check?.(trx, row, now)) ?? undefined
     await trx('sessions')
       .where({ id })
       .update({ status: s.to, [s.stamp]: now.toISOString(), updated_at: now.toISOString() })
-    await recordAudit(trx, now, actor, { action: s.action, targetType: 'session', targetId: id })
+    await recordAudit(trx, now, actor, {
+      action: s.action,
+      targetType: 'session',
+      targetId: id,
+      ...(details ? { details } : {}),
+    })
   })
   return getSession(ctx.knex, id, now)
 }
 
-export const openSession = (ctx: AppContext, id: number, actor: Actor) =>
+export interface OpenChoices {
+  /** The designer accepts that recipes served twice from one take could be paired by files. */
+  acceptSameTake?: boolean
+}
+
+export const openSession = (ctx: AppContext, id: number, actor: Actor, choices: OpenChoices = {}) =>
   step(ctx, id, actor, {
     from: 'draft',
     to: 'open',
@@ -45,8 +56,20 @@ export const openSession = (ctx: AppContext, id: number, actor: Actor) =>
       open: 'This session is already open',
       closed: 'A closed session cannot open again',
     },
-    check: async (trx, row, now) =>
-      assertPossible(await reviewDesign(trx, { ...designOf(row), deadline: row.deadline }, now)),
+    check: async (trx, row, now) => {
+      const design = { ...designOf(row), deadline: row.deadline, playerWords: playerWordsOf(row) }
+      const review = await reviewDesign(trx, design, now)
+      assertPossible(review)
+      if (review.sameTake.length === 0) return { sameTake: false }
+      if (!choices.acceptSameTake)
+        throw validationFailed('Accept the warning about single takes to open this session', {
+          fields: { acceptSameTake: review.sameTake },
+        })
+      await trx('sessions')
+        .where({ id: row.id })
+        .update({ same_take_accepted_at: now.toISOString(), same_take_accepted_by: actor.email })
+      return { sameTake: true, sameTakeWarnings: review.sameTake }
+    },
   })
 
 export const closeSession = (ctx: AppContext, id: number, actor: Actor) =>

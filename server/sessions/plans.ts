@@ -35,14 +35,15 @@ export async function trialCountOf(db: Knex, s: SessionRow): Promise<number> {
 
 /**
  * The words and scales a player is shown for a session, the same on the player's own page and
- * in the staff preview: a triangle asks only for the odd one, so it shows no attributes.
+ * in the staff preview: a triangle asks only for the odd one, so it shows no attributes. The
+ * words are the player title and message; the staff name and purpose never leave staff screens.
  */
 export function playerFacing(s: SessionRow) {
   const format = formatOf(s.format)
   return {
-    sessionName: s.name,
+    playerTitle: s.player_title,
     format: s.format,
-    instructions: s.instructions,
+    playerMessage: s.player_message,
     deadline: s.deadline,
     cautions: [...format.cautions],
     attributes: format.ratesAttributes ? designOf(s).attributes : [],

@@ -8,6 +8,7 @@ import { reviewDesign } from './designReview'
 import {
   answersCount,
   designOf,
+  playerWordsOf,
   summaryQuery,
   toSummary,
   type SessionRow,
@@ -27,7 +28,11 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
   if (!s) throw notFound('Session')
   const design = designOf(s)
   // A draft's passed deadline is worth a warning; a running session's is simply its end.
-  const review = await reviewDesign(knex, { ...design, deadline: s.deadline }, null)
+  const review = await reviewDesign(
+    knex,
+    { ...design, deadline: s.deadline, playerWords: playerWordsOf(s) },
+    null,
+  )
   const warnings = [...Object.values(review.errors).flat(), ...review.warnings]
   if (s.status === 'draft' && s.deadline < now.toISOString().slice(0, 10))
     warnings.push('The deadline has passed: choose a new one before opening')
@@ -47,7 +52,8 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
     attributes: design.attributes,
     duplicates: s.duplicates,
     allowNoPreference: Boolean(s.allow_no_preference),
-    instructions: s.instructions,
+    playerTitle: s.player_title,
+    playerMessage: s.player_message,
     reminderDaysBefore: s.reminder_days_before,
     seed: s.seed,
     locked: answers > 0,
@@ -55,6 +61,10 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
     trialCount: review.trialCount,
     warnings,
     recordProblem: s.record_problem ?? null,
+    sameTakeWarnings: review.sameTake,
+    sameTakeAccepted: s.same_take_accepted_at
+      ? { at: s.same_take_accepted_at, by: s.same_take_accepted_by ?? null }
+      : null,
     recipes: review.recipes,
     timePoints: family.map((f) => ({ id: f.id, label: f.time_point_label, status: f.status })),
     openedAt: s.opened_at,

@@ -11,11 +11,12 @@ import { invitePlayers } from '../invitations/invite'
 import { listInvitations } from '../invitations/tracking'
 import { remindSession } from '../invitations/followUps'
 import { sessionPreview } from './preview'
-import { labelSheet } from '../invitations/labels'
+import { labelSheet, packingList } from '../invitations/labels'
 import { loadSession } from './rows'
 import { idParam } from '../../shared/schemas/common'
 import {
   inviteBody,
+  openSessionBody,
   previewQuery,
   sessionDesignBody,
   timePointBody,
@@ -54,12 +55,15 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
       body: updateSessionBody,
       update: (id, body, actor) => updateSession(ctx, id, body, actor),
     }),
-    itemAction({
+    route({
       method: 'post',
       path: '/:id/open',
       roles: EDITORS,
-      key: 'session',
-      act: (id, actor) => openSession(ctx, id, actor),
+      params: idParam,
+      body: openSessionBody,
+      handler: async (req, res, { params, body }) => {
+        res.json({ session: await openSession(ctx, params.id, actorOf(req), body) })
+      },
     }),
     itemAction({
       method: 'post',
@@ -133,6 +137,16 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
       params: idParam,
       handler: async (_req, res, { params }) => {
         res.json(await labelSheet(ctx, params.id))
+      },
+    }),
+    route({
+      method: 'get',
+      // The key to the coded envelopes: a route of its own, so it never rides on the labels.
+      path: '/:id/packing-list',
+      roles: EDITORS,
+      params: idParam,
+      handler: async (_req, res, { params }) => {
+        res.json(await packingList(ctx, params.id))
       },
     }),
   ]

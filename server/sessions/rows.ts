@@ -22,19 +22,31 @@ export interface SessionRow {
   attributes: string
   duplicates: number
   allow_no_preference: number | boolean
-  instructions: string
+  /** The only session words players see; name and purpose stay with staff. */
+  player_title: string
+  player_message: string
   deadline: string
   reminder_days_before: number | null
   parent_session_id: number | null
   time_point_label: string | null
   /** Why the served record of an older session could not be rebuilt; null when it is sound. */
   record_problem?: string | null
+  /** Set when the designer opened with recipes served twice from one take. */
+  same_take_accepted_at?: string | null
+  /** Who accepted it: the staff member's e-mail at the time. */
+  same_take_accepted_by?: string | null
   created_by: number | null
   created_at: string
   updated_at: string
   opened_at: string | null
   closed_at: string | null
 }
+
+/** The player title and message, as the design review checks them. */
+export const playerWordsOf = (r: Pick<SessionRow, 'player_title' | 'player_message'>) => ({
+  playerTitle: r.player_title,
+  playerMessage: r.player_message,
+})
 
 /** The design as stored, decoded from its JSON columns. */
 export interface StoredDesign {
@@ -69,20 +81,24 @@ export function designInput(
     clipSets:
       formatOf(d.format).clipSets === 'none'
         ? []
-        : d.clipSets.map((s) => ({
-            excerptKey: s.key,
-            clips: s.clipIds.map((clipId) => ({
-              clipId,
-              recipeId: recipeOfClip.get(clipId) ?? -1,
-            })),
-          })),
+        : d.clipSets.map((s) => {
+            const clip = (clipId: number) => ({ clipId, recipeId: recipeOfClip.get(clipId) ?? -1 })
+            const twins = (s.twinClipIds ?? []).map(clip)
+            // Designs without second takes keep the shape (and so the codes) they always had.
+            return twins.length
+              ? { excerptKey: s.key, clips: s.clipIds.map(clip), twins }
+              : { excerptKey: s.key, clips: s.clipIds.map(clip) }
+          }),
     duplicates: d.duplicates,
     seed: d.seed,
   }
 }
 
+/** Every clip a set spec plays: its clips and their second takes. */
+export const clipIdsOfSet = (s: ClipSetSpec): number[] => [...s.clipIds, ...(s.twinClipIds ?? [])]
+
 export async function clipRecipes(db: Knex, clipSets: ClipSetSpec[]): Promise<Map<number, number>> {
-  const ids = [...new Set(clipSets.flatMap((s) => s.clipIds))]
+  const ids = [...new Set(clipSets.flatMap(clipIdsOfSet))]
   if (ids.length === 0) return new Map()
   const rows: { id: number; recipe_id: number }[] = await db('clips')
     .whereIn('id', ids)

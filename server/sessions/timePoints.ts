@@ -44,7 +44,8 @@ export async function addTimePoint(
       attributes: design.attributes,
       duplicates: design.duplicates,
       allowNoPreference: Boolean(source.allow_no_preference),
-      instructions: source.instructions,
+      playerTitle: source.player_title,
+      playerMessage: source.player_message,
       deadline: body.deadline,
       reminderDaysBefore: source.reminder_days_before,
       timePointLabel: body.label,
@@ -53,7 +54,10 @@ export async function addTimePoint(
     { parentSessionId: root.id },
   )
   if (!body.inviteSamePlayers) return created
-  await openSession(ctx, created.id, actor)
+  // A later time point plays what the first did: the single-take choice made then carries over.
+  await openSession(ctx, created.id, actor, {
+    acceptSameTake: Boolean(source.same_take_accepted_at),
+  })
   const players = (
     (await ctx
       .knex('invitations as i')

@@ -1,5 +1,6 @@
 import type { Knex } from 'knex'
 import type { ClipSetSpec } from '../../shared/schemas/sessions'
+import { clipIdsOfSet } from './rows'
 
 // Which sessions use a clip or a recipe. A used item is frozen: what it is cannot change under
 // the answers already given (or about to be given) about it, and it is archived, not deleted.
@@ -23,7 +24,9 @@ export async function sessionsUsing(
   return rows
     .filter((r) =>
       'clipId' in item
-        ? (JSON.parse(r.clip_sets) as ClipSetSpec[]).some((s) => s.clipIds.includes(item.clipId))
+        ? (JSON.parse(r.clip_sets) as ClipSetSpec[]).some((s) =>
+            clipIdsOfSet(s).includes(item.clipId),
+          )
         : (JSON.parse(r.recipe_ids) as number[]).includes(item.recipeId),
     )
     .map(({ id, name, status, time_point_label }) => ({ id, name, status, time_point_label }))

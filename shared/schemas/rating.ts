@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import type { AttributeSpec, PlayerLanding, SessionFormat } from './sessions'
+import type { HeadphoneStatus } from '../headphoneCheck'
 
 // What the player's browser exchanges with the server. Everything here carries blind codes and
 // opaque references only: never a recipe, a clip id or a file name.
@@ -45,21 +46,36 @@ export const saveAnswerBody = z.strictObject({
   answer: trialAnswer,
 })
 
+/**
+ * POST /api/player/headphone — the player's pick (0–2: which tone was quietest) for each trial of
+ * the attempt the server dealt; the server scores it.
+ */
 export const headphoneCheckBody = z.strictObject({
   token: playerToken,
-  /** Correct answers out of `trials` in the three-tone antiphase check. */
-  correct: z.number().int().min(0).max(20),
-  trials: z.number().int().min(1).max(20),
+  attempt: z.number().int().min(1).max(20),
+  responses: z
+    .array(z.number().int().min(0, 'Tone 1, 2 or 3').max(2, 'Tone 1, 2 or 3'))
+    .min(1, 'Answer every set of tones')
+    .max(20),
 })
 
 export const tokenBody = z.strictObject({ token: playerToken })
 
+/** A clip as a player meets it: its code and an address; no length, level or picture. */
 export interface PlayerClipView {
   code: number
   /** Opaque address of the level-matched rendition; says nothing about the recipe. */
   audioUrl: string
+}
+
+/**
+ * The one waveform of a screen: the envelope of its matched set's clips together, the same
+ * whichever code is selected and on every screen of the set.
+ */
+export interface PlayerPicture {
   duration: number
-  peaks: { min: number[]; max: number[] }
+  min: number[]
+  max: number[]
 }
 
 export interface PlayerTrialView {
@@ -68,13 +84,15 @@ export interface PlayerTrialView {
   /** Trials with the same screen number are answered on one screen (the clips of a matched set). */
   screen: number
   clips: PlayerClipView[]
+  /** Null for play-tests, which play nothing. */
+  picture: PlayerPicture | null
   setCode: number | null
 }
 
 export interface PlayerPlanView {
-  sessionName: string
+  playerTitle: string
   format: SessionFormat
-  instructions: string
+  playerMessage: string
   deadline: string
   cautions: string[]
   attributes: AttributeSpec[]
@@ -85,8 +103,8 @@ export interface PlayerPlanView {
 export interface PlayerState {
   landing: PlayerLanding
   consentAt: string | null
-  /** The latest headphone check; `attempts` counts every check sent, failed ones included. */
-  headphone: { correct: number; trials: number; passed: boolean; attempts: number } | null
+  /** Where the headphone check stands; null before the first attempt is scored. */
+  headphone: PlayerHeadphone | null
   levelSetAt: string | null
   /** Answers already stored, so a reopened link resumes where the player left. */
   answers: { trialIndex: number; answer: TrialAnswer }[]
@@ -104,4 +122,17 @@ export interface SaveAnswerResult {
 }
 
 /** The headphone check's pass mark: 5 of 6 (Woods et al. 2017). */
-export const HEADPHONE_PASS = { correct: 5, trials: 6 } as const
+export { HEADPHONE_PASS } from '../headphoneCheck'
+
+/** The player's own headphone check: the latest scored attempt and what may come next. */
+export interface PlayerHeadphone {
+  status: HeadphoneStatus
+  /** Right answers and trials of the latest scored attempt. */
+  correct: number
+  trials: number
+  passed: boolean
+  /** Attempts scored so far, failed ones included. */
+  attempts: number
+  /** Seconds until another attempt may start (0: now); null when no attempt is left or needed. */
+  retryInSeconds: number | null
+}

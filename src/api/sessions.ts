@@ -2,6 +2,8 @@ import type {
   InvitationRow,
   InviteResult,
   LabelSheet,
+  PackingList,
+  OpenSessionBody,
   PlannerQuery,
   PlannerResult,
   SessionPreview,
@@ -19,7 +21,8 @@ export const sessionsApi = {
   create: (body: SessionDesign) => api.post<{ session: SessionDetail }>('/sessions', body),
   update: (id: number, body: UpdateSessionBody) =>
     api.patch<{ session: SessionDetail }>(`/sessions/${id}`, body),
-  open: (id: number) => api.post<{ session: SessionDetail }>(`/sessions/${id}/open`),
+  open: (id: number, body: OpenSessionBody = {}) =>
+    api.post<{ session: SessionDetail }>(`/sessions/${id}/open`, body),
   close: (id: number) => api.post<{ session: SessionDetail }>(`/sessions/${id}/close`),
   preview: (id: number, player: number) =>
     api.get<{ plan: SessionPreview }>(`/sessions/${id}/preview`, { player }),
@@ -31,6 +34,7 @@ export const sessionsApi = {
     api.post<InviteResult>(`/sessions/${id}/invitations`, { playerIds }),
   remindAll: (id: number) => api.post<{ reminded: number }>(`/sessions/${id}/remind`),
   labels: (id: number) => api.get<LabelSheet>(`/sessions/${id}/labels`),
+  packingList: (id: number) => api.get<PackingList>(`/sessions/${id}/packing-list`),
   planner: (query: PlannerQuery) =>
     api.get<PlannerResult>('/planner', query as Record<string, number>),
 }

@@ -3,67 +3,18 @@
 // sounds quietest; over headphones it does not, so only a listener on headphones reliably picks
 // the truly quieter tone.
 
-/**
- * The pass mark, 5 of 6 (Woods et al. 2017). The same as HEADPHONE_PASS in the shared contract,
- * written out here because importing that module would bring the validation library into the
- * player's page; a unit test keeps the two equal.
- */
-export const HEADPHONE_PASS = { correct: 5, trials: 6 } as const
+// Which tones each trial plays, in which order, is dealt by the server (it also scores the
+// answers); the rules and the dealing live in the shared module, the sound is made here.
+import type { ToneKind } from '@shared/headphoneCheck'
 
-export type ToneKind = 'reference' | 'antiphase' | 'quiet'
-
-export interface HeadphoneTrial {
-  tones: [ToneKind, ToneKind, ToneKind]
-  /** Index (0–2) of the quieter in-phase tone: the right answer. */
-  answer: number
-}
-
-const ORDERS: [ToneKind, ToneKind, ToneKind][] = [
-  ['reference', 'antiphase', 'quiet'],
-  ['reference', 'quiet', 'antiphase'],
-  ['antiphase', 'reference', 'quiet'],
-  ['antiphase', 'quiet', 'reference'],
-  ['quiet', 'reference', 'antiphase'],
-  ['quiet', 'antiphase', 'reference'],
-]
-
-/** A small seeded generator, so a check can be replayed exactly in tests. */
-export function seededRandom(seed: number): () => number {
-  let s = seed >>> 0
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0
-    let t = s
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-/**
- * Six trials that use every order of the three tones once, shuffled: the quiet tone is in each
- * position equally often, so a listener with a habit ("always the last") gains nothing.
- */
-export function headphoneTrials(
-  random: () => number = Math.random,
-  count: number = HEADPHONE_PASS.trials,
-): HeadphoneTrial[] {
-  const trials: HeadphoneTrial[] = []
-  while (trials.length < count) {
-    const block = ORDERS.slice()
-    for (let i = block.length - 1; i > 0; i--) {
-      const j = Math.floor(random() * (i + 1))
-      ;[block[i], block[j]] = [block[j], block[i]]
-    }
-    for (const tones of block) {
-      if (trials.length < count) trials.push({ tones, answer: tones.indexOf('quiet') })
-    }
-  }
-  return trials
-}
-
-export function headphonePassed(correct: number, trials: number): boolean {
-  return trials >= HEADPHONE_PASS.trials && correct >= HEADPHONE_PASS.correct
-}
+export {
+  HEADPHONE_PASS,
+  headphonePassed,
+  headphoneTrials,
+  seededRandom,
+  type HeadphoneTrial,
+  type ToneKind,
+} from '@shared/headphoneCheck'
 
 export const TONE = {
   frequency: 200,

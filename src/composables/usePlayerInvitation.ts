@@ -1,6 +1,7 @@
 import { computed, nextTick, onBeforeUnmount, onMounted, ref, shallowRef } from 'vue'
 import type { PlayerPlanView, PlayerState, TrialAnswer } from '@shared/schemas/rating'
 import type { PlayerLanding, SessionFormat } from '@shared/schemas/sessions'
+import type { HeadphoneDeal } from '@shared/headphoneCheck'
 import { playerApi } from '@/api/player'
 import { AnswerQueue, type QueueState } from '@/player/answerQueue'
 import { FORMAT_SCREENS } from '@/player/formatScreens'
@@ -24,6 +25,8 @@ export function usePlayerInvitation(token: string, setCode: number | null) {
   const landing = shallowRef<PlayerLanding | null>(null)
   const state = shallowRef<PlayerState | null>(null)
   const plan = shallowRef<PlayerPlanView | null>(null)
+  /** The attempt at the headphone check the server dealt, while the player takes it. */
+  const headphoneDeal = shallowRef<HeadphoneDeal | null>(null)
   const answers = shallowRef(new Map<number, TrialAnswer>())
   const screenIndex = ref(0)
   const queueState = ref<QueueState>({ status: 'idle', waiting: 0, message: null, last: null })
@@ -99,7 +102,9 @@ export function usePlayerInvitation(token: string, setCode: number | null) {
       phase.value = 'problem'
       return
     }
-    if (listening.value && !state.value!.headphone?.passed) phase.value = 'headphone'
+    // A check failed at every attempt allowed lets the player go on (the organisers see it).
+    const check = state.value!.headphone?.status
+    if (listening.value && check !== 'passed' && check !== 'failed') phase.value = 'headphone'
     else if (listening.value && !state.value!.levelSetAt) phase.value = 'level'
     else enterTrials()
   }
@@ -116,12 +121,26 @@ export function usePlayerInvitation(token: string, setCode: number | null) {
       await afterConsent()
     })
 
-  const headphoneDone = (correct: number, total: number) =>
+  const headphoneStart = () =>
     act(async () => {
-      state.value = await playerApi.headphone(token, correct, total)
-      if (state.value.headphone?.passed) phase.value = state.value.levelSetAt ? 'trials' : 'level'
-      if (phase.value === 'trials') enterTrials()
+      headphoneDeal.value = await playerApi.headphoneStart(token)
     })
+
+  /** A pass goes straight on; a failure stays on the check, which explains what comes next. */
+  const headphoneDone = (responses: number[]) =>
+    act(async () => {
+      const deal = headphoneDeal.value
+      if (!deal) return
+      state.value = await playerApi.headphone(token, deal.attempt, responses)
+      headphoneDeal.value = null
+      if (state.value.headphone?.passed) afterHeadphone()
+    })
+
+  /** On to the level (or the trials, when it was set before). */
+  function afterHeadphone() {
+    if (state.value?.levelSetAt) enterTrials()
+    else phase.value = 'level'
+  }
 
   const levelDone = () =>
     act(async () => {
@@ -185,7 +204,10 @@ export function usePlayerInvitation(token: string, setCode: number | null) {
     closed,
     screenDone,
     consent,
+    headphoneDeal,
+    headphoneStart,
     headphoneDone,
+    afterHeadphone,
     levelDone,
     onAnswer,
     go,

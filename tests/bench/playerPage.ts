@@ -3,6 +3,7 @@ import { join } from 'node:path'
 import { gzipSync } from 'node:zlib'
 import { launchBrowser, startProduct } from '../e2e/browser'
 import { invitedStudy } from '../e2e/playerFixture'
+import { passChecksByApi } from '../e2e/checksByApi'
 import { round, type Figure } from './figure'
 
 // The player's page in headless chromium against the built client and the real server: how
@@ -28,18 +29,7 @@ export async function playerPageFigures(): Promise<Figure[]> {
     })
     const token = link.split('/p/')[1]
     // Consent and both checks through the API: the benchmark is about the trial screen.
-    for (const [path, body] of [
-      ['consent', { token }],
-      ['headphone', { token, correct: 6, trials: 6 }],
-      ['level', { token }],
-    ] as const) {
-      const res = await fetch(`${product.base}/api/player/${path}`, {
-        method: 'POST',
-        headers: { 'Content-Type': 'application/json' },
-        body: JSON.stringify(body),
-      })
-      if (!res.ok) throw new Error(`${path}: ${res.status}`)
-    }
+    await passChecksByApi(product.base, token)
 
     const page = await browser.newPage({ viewport: { width: 1280, height: 900 } })
     await page.addInitScript("localStorage.setItem('ringdown.bench', '1')")

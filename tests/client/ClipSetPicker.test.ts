@@ -46,6 +46,7 @@ const saved: ResolvedClipSet[] = [
     performerCode: 'PF-02',
     instrumentCode: 'VN-3',
     clips: [clipOf(7, 1, false), clipOf(31, 2, true)],
+    twins: [],
   },
   {
     key: 'scale · PF-01 · VN-3',
@@ -54,6 +55,7 @@ const saved: ResolvedClipSet[] = [
     performerCode: 'PF-01',
     instrumentCode: 'VN-3',
     clips: [clipOf(40, 1, true), clipOf(41, 2, true)],
+    twins: [],
   },
 ]
 

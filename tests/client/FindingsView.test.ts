@@ -36,6 +36,7 @@ const findings: SessionFindings = {
     answers: 312,
     players: 12,
     excluded: 1,
+    headphoneExcluded: 0,
     lastAnswerAt: '2026-12-02T14:03:00.000Z',
     lastChange: { action: 'findings.player_excluded', at: '2026-12-02T14:10:00.000Z' },
   },

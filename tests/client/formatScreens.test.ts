@@ -21,20 +21,19 @@ import { SESSION_FORMATS, type SessionFormat } from '@shared/schemas/sessions'
 const clip = (code: number) => ({
   code,
   audioUrl: `/api/player/audio/r${code}`,
-  duration: 4,
-  peaks: { min: [], max: [] },
 })
 const trialOf = (kind: SessionFormat, index: number, codes: number[]): PlayerTrialView => ({
   index,
   kind,
   screen: index,
   clips: codes.map(clip),
+  picture: kind === 'playtest' ? null : { duration: 4, min: [], max: [] },
   setCode: kind === 'playtest' ? 417 : null,
 })
 const planOf = (format: SessionFormat, trials: PlayerTrialView[]): PlayerPlanView => ({
-  sessionName: 'Winter gut A',
+  playerTitle: 'Winter listening',
   format,
-  instructions: '',
+  playerMessage: '',
   deadline: '2027-01-31',
   cautions: [],
   attributes: [

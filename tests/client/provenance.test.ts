@@ -16,6 +16,7 @@ describe('what the findings were computed from', () => {
         answers: 312,
         players: 12,
         excluded: 1,
+        headphoneExcluded: 0,
         lastAnswerAt: '2026-12-02T14:03:00.000Z',
         lastChange: { action: 'findings.player_excluded', at: '2026-12-02T14:10:00.000Z' },
       }),
@@ -27,13 +28,21 @@ describe('what the findings were computed from', () => {
 
   it('says so when nothing was answered and nothing changed, in the singular where it is one', () => {
     expect(
-      provenanceLine({ answers: 0, players: 0, excluded: 0, lastAnswerAt: null, lastChange: null }),
+      provenanceLine({
+        answers: 0,
+        players: 0,
+        excluded: 0,
+        headphoneExcluded: 0,
+        lastAnswerAt: null,
+        lastChange: null,
+      }),
     ).toBe('No answers yet')
     expect(
       provenanceLine({
         answers: 1,
         players: 1,
         excluded: 0,
+        headphoneExcluded: 0,
         lastAnswerAt: '2026-11-30T09:05:00.000Z',
         lastChange: { action: 'session.opened', at: '2026-11-29T08:00:00.000Z' },
       }),
@@ -43,11 +52,26 @@ describe('what the findings were computed from', () => {
     )
   })
 
+  it('says how many of the excluded were left out for a failed headphone check', () => {
+    const line = provenanceLine({
+      answers: 40,
+      players: 5,
+      excluded: 3,
+      headphoneExcluded: 2,
+      lastAnswerAt: null,
+      lastChange: null,
+    })
+    expect(line).toBe(
+      'Computed from 40 answers of 5 players, 3 excluded (2 for a failed headphone check)',
+    )
+  })
+
   it('writes no audit code, even for an action it has no words for yet', () => {
     const line = provenanceLine({
       answers: 5,
       players: 2,
       excluded: 0,
+      headphoneExcluded: 0,
       lastAnswerAt: null,
       lastChange: { action: 'session.time_point_added', at: '2026-11-29T08:00:00.000Z' },
     })
@@ -71,6 +95,7 @@ describe('what the findings were computed from', () => {
           answers: 18,
           players: 3,
           excluded: 0,
+          headphoneExcluded: 0,
           lastAnswerAt: '2026-12-01T01:48:00.000Z',
           lastChange: { action: 'session.closed', at: '2026-12-01T02:00:00.000Z' },
         },

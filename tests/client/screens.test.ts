@@ -6,7 +6,8 @@ const trial = (index: number, screen: number): PlayerTrialView => ({
   index,
   kind: 'rating',
   screen,
-  clips: [{ code: 100 + index, audioUrl: `/a/${index}`, duration: 3, peaks: { min: [], max: [] } }],
+  clips: [{ code: 100 + index, audioUrl: `/a/${index}` }],
+  picture: { duration: 3, min: [], max: [] },
   setCode: null,
 })
 const KEYS = ['brightness', 'warmth']

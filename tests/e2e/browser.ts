@@ -7,6 +7,7 @@ import { chromium, type Browser } from 'playwright-core'
 import pino from 'pino'
 import { createApp } from '../../server/app'
 import { loadConfig } from '../../server/config'
+import type { Clock } from '../../server/clock'
 import { createKnex } from '../../server/db/knex'
 import { prepareDatabase } from '../../server/db/prepare'
 import { startFakeSmtp } from '../../server/mail/fakeSmtp'
@@ -34,9 +35,13 @@ export async function startProduct() {
   const knex = createKnex(config.databaseFile)
   await prepareDatabase(knex)
   const fake = await startFakeSmtp()
+  // The real time, but one a test can move on past a pause the server enforces.
+  let skew = 0
+  const clock: Clock = { now: () => new Date(Date.now() + skew) }
   const app = createApp({
     knex,
     config,
+    clock,
     mailer: smtpMailer({ host: '127.0.0.1', port: fake.port }),
     mailbox: fake.mailbox,
     serveClient: true,
@@ -50,6 +55,10 @@ export async function startProduct() {
   return {
     base,
     mailbox: fake.mailbox,
+    /** Moves the server's clock on by `ms`. */
+    skipAhead(ms: number) {
+      skew += ms
+    },
     async stop() {
       await new Promise((r) => server.close(r))
       await app.locals.ctx.outbox.settle()

@@ -50,8 +50,8 @@ describe('a developer in the browser', () => {
     await dialog.getByText('cellar-take-07.wav').waitFor()
     await pick(page, 'recipe', 'Aurel A bare (v1, violin A)')
     await pick(page, 'excerpt', 'open string')
-    await dialog.getByPlaceholder('e.g. PF-01').fill('pf-07')
-    await dialog.getByPlaceholder('e.g. VN-3').fill('VN-3')
+    await dialog.getByPlaceholder('e.g. PF-07').fill('pf-07')
+    await dialog.getByPlaceholder('e.g. VN-9').fill('VN-3')
     await dialog.getByRole('button', { name: 'Upload 1 file' }).click()
 
     const state = dialog.locator('[data-test=upload-state]')

@@ -4,6 +4,7 @@ import { join } from 'node:path'
 import type { PlayerPlanView, PlayerState } from '../../shared/schemas/rating'
 import { launchBrowser, SHOTS, startProduct } from './browser'
 import { invitedStudy } from './playerFixture'
+import { passChecksByApi } from './checksByApi'
 
 let product: Awaited<ReturnType<typeof startProduct>>
 let browser: Browser
@@ -75,20 +76,32 @@ describe('a player on a phone', () => {
     await page.goto(study.link.replace(/^https?:\/\/[^/]+/, product.base))
 
     await page.getByRole('heading', { name: /^Welcome/ }).waitFor()
+    // The player title heads the page; the staff name (which names the recipes) never shows.
+    expect(await page.textContent('[data-test=player-title]')).toBe(study.playerTitle)
+    expect(await page.textContent('body')).not.toContain('Aurel A in the browser')
     await page.screenshot({ path: join(SHOTS, 'player-phone-welcome.png'), fullPage: true })
     const begin = page.getByRole('button', { name: 'Agree and begin' })
     expect(await begin.isDisabled()).toBe(true)
     await page.getByLabel('I agree that my ratings may be used in this way.').check()
     await begin.click()
 
-    // A failed check explains itself and offers another go.
+    // A failed check explains itself and offers another go after a pause the server keeps.
     await page.getByRole('heading', { name: 'Headphone check' }).waitFor()
     await headphoneCheck(page, false, false)
     await page.locator('[data-test=headphone-failed]').waitFor()
+    const countdown = page.locator('[data-test=headphone-countdown]')
+    expect(await countdown.textContent()).toMatch(/You can try again in (30|29) seconds/)
+    const retry = page.getByRole('button', { name: 'Try the check again' })
+    expect(await retry.isDisabled()).toBe(true)
     await page.screenshot({
       path: join(SHOTS, 'player-phone-headphone-failed.png'),
       fullPage: true,
     })
+    // Rather than wait the pause out, the server's clock moves past it; the reopened page
+    // hears from the server that the retry is open.
+    product.skipAhead(30_000)
+    await page.reload()
+    await countdown.getByText('You can try again now.').waitFor()
     await headphoneCheck(page, true, true)
 
     await page.getByRole('heading', { name: 'Set a comfortable level' }).waitFor()
@@ -203,18 +216,7 @@ describe('a pair-preference player on a desktop', () => {
       allowNoPreference: true,
     })
     const token = study.link.split('/p/')[1]
-    for (const [path, body] of [
-      ['consent', { token }],
-      ['headphone', { token, correct: 6, trials: 6 }],
-      ['level', { token }],
-    ] as const) {
-      const res = await fetch(`${product.base}/api/player/${path}`, {
-        method: 'POST',
-        headers: { 'Content-Type': 'application/json' },
-        body: JSON.stringify(body),
-      })
-      expect(res.status, `${path}: ${await res.text()}`).toBe(200)
-    }
+    await passChecksByApi(product.base, token)
     const page = await playerPage(DESKTOP)
     const errors = watchErrors(page)
     await page.goto(`${product.base}/p/${token}`)

@@ -56,6 +56,8 @@ export async function uploadClip(
   return stored.id
 }
 
+let rounds = 0
+
 /**
  * An open session over three demo recipes in two matched sets, with one player invited; the
  * invitation's link is read from the mailbox, as a player would find it.
@@ -64,7 +66,13 @@ export async function invitedStudy(
   base: string,
   mailbox: { list(): { to: string; subject: string; text: string }[] },
   design: { format: string; name: string; duplicates?: number; allowNoPreference?: boolean },
-): Promise<{ sessionId: number; link: string; playerEmail: string; staff: Staff }> {
+): Promise<{
+  sessionId: number
+  link: string
+  playerEmail: string
+  playerTitle: string
+  staff: Staff
+}> {
   const staff = await signInStaff(base, 'developer@ringdown.test')
   const { recipes } = await staff.get<{ recipes: { id: number; name: string }[] }>('/recipes')
   const aurel = recipes.filter((r) => r.name.startsWith('Aurel A')).slice(0, 3)
@@ -86,17 +94,20 @@ export async function invitedStudy(
     clipSets.push({ key: `scale · ${performer}`, clipIds })
   }
   const deadline = new Date(Date.now() + 7 * 86_400_000).toISOString().slice(0, 10)
+  // Players see the player title, never the staff name: the mail is found by its subject.
+  const playerTitle = `Listening in the browser, round ${++rounds}`
   const { session } = await staff.send<{ session: { id: number } }>('POST', '/sessions', {
     name: design.name,
+    playerTitle,
     format: design.format,
     recipeIds: chosen.map((r) => r.id),
     clipSets,
     duplicates: design.duplicates ?? 1,
     allowNoPreference: design.allowNoPreference ?? false,
-    instructions: 'Use headphones in a quiet room.',
+    playerMessage: 'Use headphones in a quiet room.',
     deadline,
   })
-  await staff.send('POST', `/sessions/${session.id}/open`)
+  await staff.send('POST', `/sessions/${session.id}/open`, { acceptSameTake: true })
   const { players } = await staff.get<{ players: { id: number; email: string | null }[] }>(
     '/panel/players',
   )
@@ -105,10 +116,10 @@ export async function invitedStudy(
   const link = await waitFor(() => {
     const mail = mailbox
       .list()
-      .find((m) => m.to.includes(player.email!) && m.text.includes(design.name))
+      .find((m) => m.to.includes(player.email!) && m.subject === `Invitation: ${playerTitle}`)
     return mail?.text.match(/https?:\/\/\S+\/p\/[\w.-]+/)?.[0]
   })
-  return { sessionId: session.id, link, playerEmail: player.email!, staff }
+  return { sessionId: session.id, link, playerEmail: player.email!, playerTitle, staff }
 }
 
 export async function waitFor<T>(probe: () => T | undefined, ms = 10_000): Promise<T> {

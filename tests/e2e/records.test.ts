@@ -101,6 +101,7 @@ async function openSessionOnNewSet(): Promise<Used> {
   const created = await api.post(`${product.base}/api/sessions`, {
     data: {
       name: 'Record keeping check',
+      playerTitle: 'Listening session',
       format: 'rating',
       recipeIds: pair.map((r) => r.id),
       clipSets: [{ key: 'record-check', clipIds }],
@@ -109,7 +110,9 @@ async function openSessionOnNewSet(): Promise<Used> {
   })
   expect(created.status()).toBe(201)
   const { session } = (await created.json()) as { session: SessionDetail }
-  const opened = await api.post(`${product.base}/api/sessions/${session.id}/open`)
+  const opened = await api.post(`${product.base}/api/sessions/${session.id}/open`, {
+    data: { acceptSameTake: true },
+  })
   expect(opened.ok()).toBe(true)
   await context.close()
   return {

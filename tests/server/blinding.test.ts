@@ -1,7 +1,6 @@
-import { createHash } from 'node:crypto'
-import { mkdtempSync, rmSync } from 'node:fs'
+import { existsSync, mkdtempSync, readdirSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
-import { join } from 'node:path'
+import { join, resolve } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { encodeWav, infoListChunk, synth } from '../../server/audio/index.ts'
@@ -9,194 +8,160 @@ import { systemClock } from '../../server/clock'
 import { seedDemoClips } from '../../seeds/demo/clips'
 import { seedDemoSessions } from '../../seeds/demo/sessions'
 import { mediaFolders } from '../../server/clips/storage'
-import type { RingdownApp } from '../../server/app'
-import { buildApp, signInAs, type TestApp } from './helpers'
+import { loadSession } from '../../server/sessions/rows'
+import { servedTrials } from '../../server/sessions/servedRecord'
+import { servingsOf } from '../../server/formats/answers'
+import type { MountedTable } from '../../server/app'
+import { SESSION_FORMATS } from '../../shared/schemas/sessions'
+import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
 import { addPlayers, isoDay, openStudy } from './sessionFixtures'
-import { answerFor, invitedOf } from './playerFixtures'
+import { invitedOf } from './playerFixtures'
+import { playerReachable, walk, type Seen, type Walked } from './blinding/walk'
+import {
+  formatProblems,
+  mailsTo,
+  secretsOf,
+  textProblems,
+  twinProblems,
+  type Secrets,
+} from './blinding/checks'
 
-// Everything a player can reach, walked with every invitation's link: no response may name a
-// recipe, carry a recipe or clip id, or give away an original file name.
+// Everything a player can reach, walked with every invitation's link, for the demo and for
+// sessions built here in every format from recordings that differ in rate, channels, depth and
+// length: no response, page, script or mail may name a recipe or carry its facts; no served
+// clip has a picture of its own; the servings of a trial agree in header and length; and no two
+// servings of one recipe decode to the same samples unless the designer accepted that.
 
-interface Seen {
-  what: string
-  status: number
-  headers: Record<string, unknown>
-  text: string
-  json: unknown
-}
+const DIST = resolve(import.meta.dirname, '../../dist')
 
-const binary = (res: request.Response, done: (err: Error | null, body: Buffer) => void) => {
-  const chunks: Buffer[] = []
-  res.on('data', (c: Buffer) => chunks.push(c))
-  res.on('end', () => done(null, Buffer.concat(chunks)))
-}
-
-/** Walks the whole player path with one link, as the pages would, keeping every response. */
-async function walk(app: RingdownApp, token: string): Promise<Seen[]> {
-  const seen: Seen[] = []
-  const keep = (what: string, res: request.Response) => {
-    const bytes = Buffer.isBuffer(res.body) ? res.body.toString('latin1') : ''
-    seen.push({
-      what,
-      status: res.status,
-      headers: res.headers,
-      text: bytes || res.text || '',
-      json: bytes ? null : res.body,
-    })
-    return res
-  }
-  const api = () => request(app)
-  keep('landing', await api().get('/api/player/invitation').query({ token }))
-  keep('state', await api().get('/api/player/state').query({ token }))
-  keep('consent', await api().post('/api/player/consent').send({ token }))
-  keep(
-    'headphone',
-    await api().post('/api/player/headphone').send({ token, correct: 6, trials: 6 }),
-  )
-  keep('level', await api().post('/api/player/level').send({ token }))
-  const plan = keep('plan', await api().get('/api/player/plan').query({ token })).body.plan
-  const keys: string[] = (plan?.attributes ?? []).map((a: { key: string }) => a.key)
-  for (const trial of plan?.trials ?? []) {
-    // Two servings of one recording (a triangle's doubled sample) must not be byte-identical.
-    const served = new Set<string>()
-    for (const clip of trial.clips) {
-      const audio = keep('audio', await api().get(clip.audioUrl).buffer(true).parse(binary))
-      if (audio.status === 200) served.add(createHash('sha256').update(audio.body).digest('hex'))
-      else served.add(`${clip.audioUrl}:${audio.status}`)
-      keep(
-        'audio range',
-        await api().get(clip.audioUrl).set('Range', 'bytes=0-4095').buffer(true).parse(binary),
-      )
-    }
-    if (served.size !== trial.clips.length)
-      throw new Error(`trial ${trial.index}: two servings arrived as the same bytes`)
-    const put = () =>
-      api()
-        .put(`/api/player/answers/${trial.index}`)
-        .send({ token, answer: answerFor(trial, keys) })
-    keep('answer', await put())
-    keep('answer again', await put())
-    keep(
-      'bad answer',
-      await api()
-        .put(`/api/player/answers/${trial.index}`)
-        .send({ token, answer: { kind: 'triangle', odd: 1 } }),
-    )
-  }
-  keep('state at the end', await api().get('/api/player/state').query({ token }))
-  return seen
-}
-
-interface Secrets {
-  names: string[]
-  clipIds: Set<number>
-}
-
-async function secretsOf(t: TestApp): Promise<Secrets> {
-  const recipes: { name: string }[] = await t.knex('recipes').select('name')
-  const clips: {
-    id: number
-    original_name: string
-    original_file: string
-    rendition_file: string
-  }[] = await t.knex('clips').select('id', 'original_name', 'original_file', 'rendition_file')
-  const slug = (s: string) => s.toLowerCase().replace(/[^a-z0-9]+/g, '-')
-  const names = [
-    ...recipes.flatMap((r) => [r.name, slug(r.name), r.name.replace(/ /g, '_')]),
-    ...clips.flatMap((c) => [c.original_name, c.original_file, c.rendition_file]),
-    ...clips.map((c) => c.original_name.replace(/\.[a-z0-9]+$/i, '')),
-  ]
+/** Picks the quiet tone of each headphone trial the server dealt, as a player who hears it. */
+function passHeadphones(start: unknown): Record<string, unknown> {
+  const s = start as { attempt: number; trials: { tones: string[] }[] } | null
   return {
-    names: [...new Set(names)].map((n) => n.toLowerCase()),
-    clipIds: new Set(clips.map((c) => c.id)),
+    attempt: s?.attempt ?? 1,
+    responses: (s?.trials ?? []).map((t) => t.tones.indexOf('quiet')),
   }
 }
 
-const FORBIDDEN_KEY = /recipe|clip_?id|original|file|excerpt|performer|repeat|odd_?index|seed/i
-const ID_KEY = /(^id$|Id$|_id$|^ref$)/
-
-function keysAndIds(value: unknown, path: string, problems: string[], secrets: Secrets) {
-  if (Array.isArray(value)) {
-    value.forEach((v, i) => keysAndIds(v, `${path}[${i}]`, problems, secrets))
-    return
-  }
-  if (value === null || typeof value !== 'object') return
-  for (const [key, v] of Object.entries(value)) {
-    if (FORBIDDEN_KEY.test(key)) problems.push(`${path}.${key}: a key that names hidden facts`)
-    if (ID_KEY.test(key) && typeof v === 'number' && secrets.clipIds.has(v))
-      problems.push(`${path}.${key}: a clip id`)
-    keysAndIds(v, `${path}.${key}`, problems, secrets)
-  }
+interface Audit {
+  walks: Walked[]
+  problems: string[]
+  twinPairs: number
+  highestTwin: number
 }
 
-function chunkIds(bytes: Buffer): string[] {
-  const ids: string[] = []
-  for (let at = 12; at + 8 <= bytes.length;) {
-    const id = bytes.toString('latin1', at, at + 4)
-    const size = bytes.readUInt32LE(at + 4)
-    ids.push(id)
-    at += 8 + size + (size % 2)
-  }
-  return ids
-}
-
-function problemsIn(seen: Seen[], secrets: Secrets): string[] {
+async function audit(t: TestApp, sessionIds: number[]): Promise<Audit> {
+  const tables: MountedTable[] = t.app.locals.tables
   const problems: string[] = []
-  for (const s of seen) {
-    const haystack = `${JSON.stringify(s.headers)}\n${s.text}`.toLowerCase()
-    for (const name of secrets.names)
-      if (haystack.includes(name)) problems.push(`${s.what}: shows "${name}"`)
-    keysAndIds(s.json, s.what, problems, secrets)
-    if (s.what === 'audio' && s.status === 200) {
-      const chunks = chunkIds(Buffer.from(s.text, 'latin1'))
-      if (chunks.join(',') !== 'fmt ,data') problems.push(`audio: chunks ${chunks.join(',')}`)
+  const walks: Walked[] = []
+  let twinPairs = 0
+  let highestTwin = -1
+  const global = await secretsOf(t.knex, [])
+  for (const id of sessionIds) {
+    const session = await loadSession(t.knex, id)
+    const secrets: Secrets = { ...global, words: (await secretsOf(t.knex, [id])).words }
+    const invited = await invitedOf(t, id)
+    for (const inv of invited) {
+      const walked = await walk(t.app, tables, inv.token, passHeadphones)
+      walks.push(walked)
+      const label = (p: string) => `session ${id} (${session.format}), invitation ${inv.id}: ${p}`
+      problems.push(...textProblems(walked.seen, secrets).map(label))
+      problems.push(...formatProblems(walked.audio).map(label))
+      const served = (await servedTrials(t.knex, session, inv.id)).map((trial) => ({
+        repeatOf: trial.repeatOf,
+        servings: servingsOf(trial).map((c) => ({ code: c.code, recipeId: Number(c.recipeId) })),
+      }))
+      const accepted = Boolean(
+        (await t.knex('sessions').where({ id }).first('same_take_accepted_at'))
+          .same_take_accepted_at,
+      )
+      const twins = twinProblems(walked.audio, served, accepted, {
+        repeatsShowTheSame: session.format !== 'triangle',
+      })
+      problems.push(...twins.problems.map(label))
+      twinPairs += twins.pairs
+      highestTwin = Math.max(highestTwin, twins.highest)
     }
-    if (s.headers['content-disposition']) problems.push(`${s.what}: a Content-Disposition`)
-    // JSON carries Express's hash of its own body; on audio a validator could pair two servings.
-    if (s.what.startsWith('audio') && (s.headers.etag || s.headers['last-modified']))
-      problems.push(`${s.what}: a validator`)
+    const emails: { email: string }[] = await t
+      .knex('invitations as i')
+      .join('players as p', 'p.id', 'i.player_id')
+      .where('i.session_id', id)
+      .select('p.email')
+    const mails = await mailsTo(
+      t.knex,
+      emails.map((e) => e.email),
+    )
+    problems.push(...textProblems(mails, secrets).map((p) => `session ${id} mail: ${p}`))
   }
-  return problems
+  return { walks, problems, twinPairs, highestTwin }
+}
+
+/** The page and every script and style the client build serves, as a player's browser gets them. */
+async function pagesAndScripts(t: TestApp): Promise<Seen[]> {
+  const seen: Seen[] = []
+  const keep = (what: string, res: request.Response) =>
+    seen.push({ what, status: res.status, headers: res.headers, text: res.text ?? '', json: null })
+  keep('page', await request(t.app).get('/play').query({ token: 'x' }))
+  for (const file of readdirSync(join(DIST, 'assets')).filter((f) => /\.(js|css|html)$/.test(f)))
+    keep(`asset ${file}`, await request(t.app).get(`/assets/${file}`))
+  return seen
 }
 
 describe('blinding in the demo', () => {
   const mediaDir = mkdtempSync(join(tmpdir(), 'ringdown-blinding-'))
   let t: TestApp
   beforeAll(async () => {
-    t = await buildApp({ config: { mediaDir } })
+    t = await buildApp({ config: { mediaDir }, serveClient: true })
     await seedDemoClips({ knex: t.knex, folders: mediaFolders(mediaDir), clock: systemClock })
     await seedDemoSessions(t.app.locals.ctx)
-  }, 120_000)
+  }, 180_000)
   afterAll(async () => {
     await t.close()
     rmSync(mediaDir, { recursive: true, force: true })
   })
 
-  it('shows every player only blind codes and opaque addresses, on every route', async () => {
-    const secrets = await secretsOf(t)
-    const sessions: { id: number; format: string; status: string }[] = await t
+  it('shows every player only blind codes, one picture and matching files, on every route', async () => {
+    const sessions: { id: number; format: string }[] = await t
       .knex('sessions')
       .orderBy('id')
-      .select('id', 'format', 'status')
-    const seen: Seen[] = []
-    let links = 0
-    for (const s of sessions)
-      for (const inv of await invitedOf(t, s.id)) {
-        seen.push(...(await walk(t.app, inv.token)))
-        links++
-      }
-
-    const audio = seen.filter((s) => s.what === 'audio' && s.status === 200)
-    expect(links).toBeGreaterThanOrEqual(16)
-    expect(new Set(sessions.map((s) => s.format))).toEqual(
-      new Set(['pair', 'rating', 'triangle', 'playtest']),
+      .select('id', 'format')
+    const result = await audit(
+      t,
+      sessions.map((s) => s.id),
     )
+    const tables: MountedTable[] = t.app.locals.tables
+    const reachable = playerReachable(tables).map((r) => `${r.method.toUpperCase()} ${r.path}`)
+
+    expect(result.walks.length).toBeGreaterThanOrEqual(16)
+    for (const w of result.walks) expect([...w.routes].sort()).toEqual([...reachable].sort())
+    expect(reachable).toContain('GET /api/player/plan')
+    expect(new Set(sessions.map((s) => s.format))).toEqual(new Set(SESSION_FORMATS))
+    const audio = result.walks.flatMap((w) => w.audio)
     expect(audio.length).toBeGreaterThan(50)
-    expect(seen.filter((s) => s.what === 'answer' && s.status === 200).length).toBeGreaterThan(50)
-    expect(seen.filter((s) => s.status === 410).length).toBeGreaterThan(0)
-    expect(secrets.names.length).toBeGreaterThan(50)
-    expect(problemsIn(seen, secrets)).toEqual([])
-  }, 120_000)
+    const answers = result.walks.flatMap((w) =>
+      w.seen.filter((s) => s.what === 'PUT /api/player/answers/:trialIndex' && s.status === 200),
+    )
+    expect(answers.length).toBeGreaterThan(50)
+    const checks = result.walks.flatMap((w) =>
+      w.seen.filter((s) => s.what === 'POST /api/player/headphone' && s.status === 200),
+    )
+    expect(checks.length).toBeGreaterThan(5)
+    // The demo's sets hold a second take of every recipe: twins are different recordings.
+    expect(result.twinPairs).toBeGreaterThanOrEqual(16)
+    expect(result.highestTwin).toBeLessThan(0.999)
+    expect(result.problems).toEqual([])
+  }, 300_000)
+
+  it('ships a page and scripts that name no recipe', async () => {
+    expect(existsSync(join(DIST, 'index.html')), 'build the client first (npm test does)').toBe(
+      true,
+    )
+    const secrets = await secretsOf(t.knex, [])
+    const seen = await pagesAndScripts(t)
+    expect(seen.length).toBeGreaterThan(3)
+    expect(seen.every((s) => s.status === 200)).toBe(true)
+    expect(textProblems(seen, { ...secrets, words: [] })).toEqual([])
+  })
 
   it('reads back the answers the demo stored before the player pages, in codes', async () => {
     const rating: { id: number } = await t
@@ -217,77 +182,194 @@ describe('blinding in the demo', () => {
   })
 })
 
-describe('blinding with tell-tale uploads', () => {
-  const mediaDir = mkdtempSync(join(tmpdir(), 'ringdown-blinding-uploads-'))
-  const SECRETS = ['Quorvane Silkcore Alpha', 'Quorvane Silkcore Beta']
+/*
+ * Sessions built here in every format from recordings that would each give themselves away:
+ * a 44.1 kHz mono take, a 96 kHz stereo 24-bit take, a 48 kHz take a second shorter, and files
+ * and tags named after their recipes. Recipes differ in construction words a title might use.
+ */
+describe('blinding of sessions built in every format', () => {
+  const mediaDir = mkdtempSync(join(tmpdir(), 'ringdown-blinding-built-'))
+  const RECIPES = [
+    { name: 'Quorvane Silkcore Alpha', core: 'gut', damping: 'compound' },
+    { name: 'Quorvane Silkcore Beta', core: 'synthetic multifilament', damping: 'fibre layer' },
+    { name: 'Quorvane Silkcore Gamma', core: 'solid steel', damping: 'none' },
+  ]
+  const TAKES = [
+    [
+      { rate: 44_100, channels: 1, bits: 16, seconds: 3.0 },
+      { rate: 48_000, channels: 1, bits: 16, seconds: 3.2 },
+    ],
+    [
+      { rate: 96_000, channels: 2, bits: 24, seconds: 3.4 },
+      { rate: 96_000, channels: 2, bits: 24, seconds: 3.3 },
+    ],
+    [
+      { rate: 48_000, channels: 1, bits: 16, seconds: 2.6 },
+      { rate: 48_000, channels: 2, bits: 16, seconds: 2.9 },
+    ],
+  ]
   let t: TestApp
+  let developer: Agent
+  const recipeIds: number[] = []
+  const clipIds: number[][] = []
   afterAll(async () => {
     await t.close()
     rmSync(mediaDir, { recursive: true, force: true })
   })
 
-  it('keeps names and tags of the uploaded files away from the player', async () => {
+  beforeAll(async () => {
     t = await buildApp({ config: { mediaDir } })
-    const developer = await signInAs(t.app, 'developer')
+    developer = await signInAs(t.app, 'developer')
     const excerpt = (await developer.get('/api/excerpts')).body.excerpts[0].id
-    const recipeIds: number[] = []
-    const clipIds: number[] = []
-    for (const [i, name] of SECRETS.entries()) {
-      const recipe = await developer.post('/api/recipes').send({
-        name,
+    for (const [r, recipe] of RECIPES.entries()) {
+      const made = await developer.post('/api/recipes').send({
+        name: recipe.name,
         instrument: 'violin',
         stringName: 'A',
-        core: 'synthetic multifilament',
+        core: recipe.core,
+        dampingKind: recipe.damping,
         vibratingLengthMm: 328,
       })
-      expect(recipe.status, JSON.stringify(recipe.body)).toBe(201)
-      recipeIds.push(recipe.body.recipe.id)
-      const tone = synth.bowedTone({
-        f0: 440,
-        seconds: 0.6 + i * 0.1,
-        attackSeconds: 0.03,
-        peakDbfs: -9,
-      })
-      const bytes = encodeWav([tone], 48_000, {
-        bitDepth: 16,
-        chunksBeforeData: [infoListChunk({ INAM: name, ICMT: `prototype ${name}` })],
-      })
-      const clip = await developer
-        .post('/api/clips')
-        .field('recipeId', recipe.body.recipe.id)
-        .field('excerptId', excerpt)
-        .field('performerCode', 'PF-Q1')
-        .field('instrumentCode', 'VN-Q1')
-        .field('kind', 'bowed')
-        .attach('file', Buffer.from(bytes), {
-          filename: `${name.replace(/ /g, '_')}_take2.wav`,
-          contentType: 'audio/wav',
+      expect(made.status, JSON.stringify(made.body)).toBe(201)
+      recipeIds.push(made.body.recipe.id)
+      clipIds.push([])
+      for (const [k, take] of TAKES[r].entries()) {
+        // Each take its own performance: a touch off in pitch and bow speed.
+        const tone = synth.bowedTone({
+          f0: 440 * (1 + 0.002 * k),
+          seconds: take.seconds,
+          attackSeconds: 0.03 + 0.02 * r + 0.01 * k,
+          peakDbfs: -9 - 3 * r,
+          sampleRate: take.rate,
         })
-      expect(clip.status, JSON.stringify(clip.body)).toBe(201)
-      clipIds.push(clip.body.clip.id)
+        const channels = take.channels === 2 ? [tone, tone.map((v) => v * 0.8)] : [tone]
+        const bytes = encodeWav(channels, take.rate, {
+          bitDepth: take.bits as 16 | 24,
+          chunksBeforeData: [infoListChunk({ INAM: recipe.name, ICMT: `take ${k + 1}` })],
+        })
+        const clip = await developer
+          .post('/api/clips')
+          .field('recipeId', made.body.recipe.id)
+          .field('excerptId', excerpt)
+          .field('performerCode', 'PF-Q1')
+          .field('instrumentCode', 'VN-Q1')
+          .field('kind', 'bowed')
+          .field('notes', 'cardioid pair at two metres, Quorvane loft')
+          .attach('file', Buffer.from(bytes), {
+            filename: `${recipe.name.replace(/ /g, '_')}_take${k + 1}.wav`,
+            contentType: 'audio/wav',
+          })
+        expect(clip.status, JSON.stringify(clip.body)).toBe(201)
+        clipIds[r].push(clip.body.clip.id)
+      }
     }
-    const { id } = await openStudy(developer, {
-      name: 'Silk core pair',
-      format: 'pair',
-      recipeIds,
-      clipSets: [{ key: 'tell-tale set', clipIds }],
-      duplicates: 1,
-      allowNoPreference: true,
-      deadline: isoDay(new Date(), 5),
-    })
-    await developer
-      .post(`/api/sessions/${id}/invitations`)
-      .send({ playerIds: await addPlayers(t.knex, 2) })
+  }, 120_000)
+
+  it('blinds every format, with second takes and with one take accepted', async () => {
+    const withTakes = {
+      key: 'built set',
+      clipIds: clipIds.map((c) => c[0]),
+      twinClipIds: clipIds.map((c) => c[1]),
+    }
+    const oneTake: { key: string; clipIds: number[]; twinClipIds?: number[] } = {
+      key: 'built set',
+      clipIds: clipIds.map((c) => c[0]),
+    }
+    const sessionIds: number[] = []
+    for (const format of SESSION_FORMATS)
+      for (const clipSets of format === 'playtest' ? [[]] : [[withTakes], [oneTake]]) {
+        const { id } = await openStudy(
+          developer,
+          {
+            name: `${RECIPES[0].name} against the others (${format})`,
+            playerTitle: 'Autumn listening round',
+            playerMessage: 'Listen at a comfortable level and answer as you hear it.',
+            format,
+            recipeIds: format === 'triangle' ? recipeIds.slice(0, 2) : recipeIds,
+            clipSets:
+              format === 'triangle'
+                ? clipSets.map((s) => ({
+                    ...s,
+                    clipIds: s.clipIds.slice(0, 2),
+                    ...(s.twinClipIds ? { twinClipIds: s.twinClipIds.slice(0, 2) } : {}),
+                  }))
+                : clipSets,
+            duplicates: 1,
+            allowNoPreference: true,
+            deadline: isoDay(new Date(), 5),
+          },
+          { acceptSameTake: clipSets[0] === oneTake },
+        )
+        await developer
+          .post(`/api/sessions/${id}/invitations`)
+          .send({ playerIds: await addPlayers(t.knex, 2) })
+        sessionIds.push(id)
+      }
     await t.settle()
+    const result = await audit(t, sessionIds)
 
-    const seen: Seen[] = []
-    for (const inv of await invitedOf(t, id)) seen.push(...(await walk(t.app, inv.token)))
-    const secrets = await secretsOf(t)
+    expect(result.walks).toHaveLength(sessionIds.length * 2)
+    expect(result.walks.flatMap((w) => w.audio).length).toBeGreaterThan(40)
+    // One-take sessions serve twins that correlate almost perfectly: accepted, so allowed.
+    expect(result.highestTwin).toBeGreaterThan(0.999)
+    expect(result.problems).toEqual([])
+  }, 300_000)
 
+  it('finds what it is looking for when blinding fails', async () => {
+    // The checks themselves, on a made-up leak: a name, a construction word, a clip picture,
+    // servings of two formats and two identical twins.
+    const secrets = await secretsOf(t.knex)
+    expect(secrets.words).toEqual(expect.arrayContaining(['gut', 'compound', 'solid steel']))
+    const leak: Seen = {
+      what: 'made up',
+      status: 200,
+      headers: {},
+      text: 'Now playing the gut string (quorvane silkcore alpha), 1px solid border',
+      json: { trials: [{ clips: [{ code: 101, audioUrl: '/a', peaks: [1, 2] }] }] },
+    }
+    const found = textProblems([leak], secrets)
+    expect(found.join('\n')).toMatch(/quorvane silkcore alpha/)
+    expect(found.join('\n')).toMatch(/says "gut"/)
+    expect(found.join('\n')).toMatch(/carries peaks/)
+    const wav = (rate: number) =>
+      Buffer.from(
+        encodeWav(
+          [
+            synth.bowedTone({
+              f0: 440,
+              seconds: 0.5,
+              attackSeconds: 0.02,
+              peakDbfs: -9,
+              sampleRate: rate,
+            }),
+          ],
+          rate,
+          { bitDepth: 16 },
+        ),
+      )
     expect(
-      seen.filter((s) => s.what === 'audio' && s.status === 200).length,
-    ).toBeGreaterThanOrEqual(4)
-    expect(secrets.names).toContain('quorvane_silkcore_alpha_take2.wav')
-    expect(problemsIn(seen, secrets)).toEqual([])
-  }, 60_000)
+      formatProblems([
+        { trial: 0, screen: 0, code: 1, bytes: wav(48_000) },
+        { trial: 0, screen: 0, code: 2, bytes: wav(44_100) },
+      ]),
+    ).toHaveLength(2)
+    const same = wav(48_000)
+    const twins = twinProblems(
+      [
+        { trial: 0, screen: 0, code: 1, bytes: same },
+        { trial: 0, screen: 0, code: 2, bytes: same },
+      ],
+      [
+        {
+          repeatOf: null,
+          servings: [
+            { code: 1, recipeId: 7 },
+            { code: 2, recipeId: 7 },
+          ],
+        },
+      ],
+      false,
+    )
+    expect(twins.problems).toHaveLength(1)
+  })
 })

@@ -114,13 +114,15 @@ async function players(
 /** Opens a draft under a fixed seed, so blind codes and orders are the same on every run. */
 async function openWithSeed(id: number, seed: string) {
   await t.knex('sessions').where({ id }).update({ seed })
-  const opened = await developer.post(`/api/sessions/${id}/open`)
+  const opened = await developer.post(`/api/sessions/${id}/open`).send({ acceptSameTake: true })
   if (opened.status !== 200)
     throw new Error(`open: ${opened.status} ${JSON.stringify(opened.body)}`)
 }
 
 async function createSession(body: Record<string, unknown>, seed: string): Promise<number> {
-  const created = await developer.post('/api/sessions').send(body)
+  const created = await developer
+    .post('/api/sessions')
+    .send({ playerTitle: 'Listening for the export', ...body })
   if (created.status !== 201)
     throw new Error(`create: ${created.status} ${JSON.stringify(created.body)}`)
   const id = created.body.session.id as number

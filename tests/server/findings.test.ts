@@ -477,11 +477,13 @@ describe('the demo sessions', () => {
         ['scale', 'PF-01'],
         ['phrase', 'PF-02'],
       ])
-        await addClip(d.knex, r.id, {
-          excerpt,
-          performer,
-          instrument: r.instrument === 'cello' ? 'VC-1' : 'VN-3',
-        })
+        // Two takes, as the demo records: the second serves twins and hidden repeats.
+        for (let take = 0; take < 2; take++)
+          await addClip(d.knex, r.id, {
+            excerpt,
+            performer,
+            instrument: r.instrument === 'cello' ? 'VC-1' : 'VN-3',
+          })
     await seedDemoSessions(d.app.locals.ctx)
     const reader = await signInAs(d.app, 'analyst')
     const sessions = (await reader.get('/api/sessions')).body.sessions as {

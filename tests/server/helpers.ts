@@ -53,6 +53,8 @@ export async function buildApp(
     clock?: Clock
     mailer?: Mailer
     mailbox?: Mailbox
+    /** Serve the built client (dist/) as the product does, for tests of what pages carry. */
+    serveClient?: boolean
   } = {},
 ): Promise<TestApp> {
   const knex = createKnex(':memory:')
@@ -67,6 +69,7 @@ export async function buildApp(
     // Production-mode apps would log every request; tests read responses, not logs.
     logger: pino({ level: 'silent' }),
     mailbox: options.mailbox,
+    serveClient: options.serveClient,
   })
   const settle = () => app.locals.ctx.outbox.settle()
   return {

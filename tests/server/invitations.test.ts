@@ -26,10 +26,11 @@ async function study(t: TestApp, agent: Agent, over: Record<string, unknown> = {
   const clock = t.app.locals.ctx.clock
   return openStudy(agent, {
     name: 'Winding study',
+    playerTitle: 'Evening listening',
     format: 'rating',
     recipeIds,
     clipSets,
-    instructions: 'Use closed headphones.',
+    playerMessage: 'Use closed headphones.',
     deadline: isoDay(clock.now(), 10),
     ...over,
   })
@@ -51,6 +52,7 @@ describe('invitations', () => {
     const { recipeIds, clipSets } = await studyFixture(t.knex, 2, 1)
     const draft = await developer.post('/api/sessions').send({
       name: 'Not yet',
+      playerTitle: 'Listening soon',
       format: 'pair',
       recipeIds,
       clipSets,
@@ -66,7 +68,7 @@ describe('invitations', () => {
     expect(res.body.error.message).toMatch(/Open the session/)
   })
 
-  it('are made once per player, with a personal mail carrying instructions, deadline, caution and link', async () => {
+  it('are made once per player, with a personal mail carrying the player message, deadline, caution and link', async () => {
     const { id } = await study(t, developer)
     const players = await addPlayers(t.knex, 4)
 
@@ -94,7 +96,9 @@ describe('invitations', () => {
     })
     expect(codesOnly.body.invitations[0]).toMatchObject({ playerName: null, playerEmail: null })
     expect(t.mailer.sent.filter((m) => m.to === mail.to)).toHaveLength(1)
-    expect(mail.subject).toBe('Invitation: Winding study')
+    // The player title, never the staff name (DESIGN.md: only the player words reach players).
+    expect(mail.subject).toBe('Invitation: Evening listening')
+    expect(`${mail.subject}${mail.text}${mail.html}`).not.toContain('Winding study')
     expect(mail.text).toMatch(/^Hello Testplayer,/)
     expect(mail.text).toContain('Use closed headphones.')
     expect(mail.text).toContain(isoDay(clock.now(), 10))
@@ -154,9 +158,9 @@ describe('the player link', () => {
 
     expect(res.status).toBe(200)
     expect(res.body).toEqual({
-      sessionName: 'Winding study',
+      playerTitle: 'Evening listening',
       format: 'rating',
-      instructions: 'Use closed headphones.',
+      playerMessage: 'Use closed headphones.',
       deadline: session.deadline,
       status: 'opened',
       cautions: [expect.stringMatching(/hearing/)],
@@ -303,8 +307,9 @@ describe('reminders', () => {
     expect(toDone.status).toBe(409)
     expect(toRevoked.status).toBe(409)
     expect(all.body).toEqual({ reminded: 2 })
-    expect(reminder.subject).toBe('Reminder: Winding study')
+    expect(reminder.subject).toBe('Reminder: Evening listening')
     expect(reminder.text).toMatch(/answered 2 of 3 trials/)
+    expect(`${reminder.text}${reminder.html}`).not.toContain('Winding study')
   })
 
   it('go out automatically once, the set number of days before the deadline', async () => {
@@ -337,8 +342,8 @@ describe('reminders', () => {
     expect([early, stillEarly, due, repeat]).toEqual([0, 0, 2, 0])
     const reminders = t.mailer.sent.slice(before)
     expect(reminders.map((m) => m.subject)).toEqual([
-      'Reminder: Winding study',
-      'Reminder: Winding study',
+      'Reminder: Evening listening',
+      'Reminder: Evening listening',
     ])
     const rows = await t.knex('invitations').where({ session_id: id }).orderBy('player_index')
     expect(rows.map((r) => r.reminders_sent)).toEqual([1, 1, 0])
@@ -401,11 +406,11 @@ describe('invitation mail through a real SMTP server', () => {
     const token = playerToken(mail)
     const landing = await request(t.app).get('/api/player/invitation').query({ token })
 
-    expect(mail.subject).toBe('Invitation: Winding study')
+    expect(mail.subject).toBe('Invitation: Evening listening')
     expect(mail.text).toMatch(/Please finish by \d{4}-\d{2}-\d{2}/)
     expect(mail.text).toMatch(/Protect your hearing/)
     expect(mail.html).toContain(`href="http://localhost:3000/p/${token}"`)
     expect(landing.status).toBe(200)
-    expect(landing.body.sessionName).toBe('Winding study')
+    expect(landing.body.playerTitle).toBe('Evening listening')
   })
 })

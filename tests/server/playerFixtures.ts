@@ -1,6 +1,7 @@
 import { mkdirSync, writeFileSync } from 'node:fs'
 import { randomBytes } from 'node:crypto'
 import type { Knex } from 'knex'
+import request from 'supertest'
 import { encodeWav, synth } from '../../server/audio/index.ts'
 import { mediaFolders } from '../../server/clips/storage'
 import { signInvitation } from '../../server/auth/invitationTokens'
@@ -83,4 +84,27 @@ export function answerFor(trial: PlanTrial, attributeKeys: string[], lean = 0) {
     case 'triangle':
       return { kind: 'triangle', odd: trial.clips[lean % 3].code }
   }
+}
+
+interface Deal {
+  attempt: number
+  trials: { tones: string[] }[]
+}
+
+/** Picks for a dealt headphone check: the quiet tone of each set, the first `wrong` missed. */
+export function headphonePicks(deal: Partial<Deal>, wrong = 0): number[] {
+  return (deal.trials ?? []).map((t, i) => {
+    const right = t.tones.indexOf('quiet')
+    return i < wrong ? (right + 1) % 3 : right
+  })
+}
+
+/** Takes one attempt at the headphone check as the page does: deal, then picks. */
+export async function takeHeadphoneCheck(t: TestApp, token: string, wrong = 0) {
+  const dealt = await request(t.app).post('/api/player/headphone/start').send({ token })
+  if (dealt.status !== 200) return dealt
+  const deal = dealt.body as Deal
+  return request(t.app)
+    .post('/api/player/headphone')
+    .send({ token, attempt: deal.attempt, responses: headphonePicks(deal, wrong) })
 }

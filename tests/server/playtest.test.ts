@@ -54,7 +54,8 @@ async function playtest(players: number) {
     format: 'playtest',
     recipeIds,
     duplicates: 1,
-    instructions: 'Play each set for two days before rating it.',
+    playerTitle: 'Strings to try at home',
+    playerMessage: 'Play each set for two days before rating it.',
     deadline: isoDay(clock.now(), 21),
   })
   const playerIds = await addPlayers(t.knex, players)
@@ -70,28 +71,34 @@ describe('play-test logistics', () => {
     const { id, session, names } = await playtest(6)
 
     const res = await developer.get(`/api/sessions/${id}/labels`)
+    const key = await developer.get(`/api/sessions/${id}/packing-list`)
 
     expect(session).toMatchObject({ trialCount: 4, status: 'open' })
     expect(res.status).toBe(200)
+    expect(key.status).toBe(200)
     const sheet = res.body
+    const packing = key.body
     expect(sheet.players).toHaveLength(6)
-    for (const p of sheet.players) {
+    expect(packing.players.map((p: { playerCode: string }) => p.playerCode)).toEqual(
+      sheet.players.map((p: { playerCode: string }) => p.playerCode),
+    )
+    for (const [i, p] of sheet.players.entries()) {
       expect(p.sets.map((s: { position: number }) => s.position)).toEqual([1, 2, 3, 4])
       for (const s of p.sets) expect(String(s.code)).toMatch(/^[1-9]\d\d$/)
-      expect(p.packing.map((l: { code: number }) => l.code)).toEqual(
+      expect(packing.players[i].lines.map((l: { code: number }) => l.code)).toEqual(
         p.sets.map((s: { code: number }) => s.code),
       )
-      expect(names).toContain(p.packing[0].recipeName)
+      expect(names).toContain(packing.players[i].lines[0].recipeName)
     }
     // Three recipes: over six players (a Williams block) each recipe opens twice.
-    const firstRecipes = sheet.players.map(
-      (p: { packing: { recipeName: string }[] }) => p.packing[0].recipeName,
+    const firstRecipes = packing.players.map(
+      (p: { lines: { recipeName: string }[] }) => p.lines[0].recipeName,
     )
     for (const name of names) expect(firstRecipes.filter((n: string) => n === name)).toHaveLength(2)
     // The same recipe carries the same blind code for every player.
     const codeOf = new Map<string, Set<number>>()
-    for (const p of sheet.players)
-      for (const l of p.packing)
+    for (const p of packing.players)
+      for (const l of p.lines)
         (codeOf.get(l.recipeName) ?? codeOf.set(l.recipeName, new Set()).get(l.recipeName)!).add(
           l.code,
         )
@@ -143,6 +150,7 @@ describe('play-test logistics', () => {
     const { recipeIds, clipSets } = await studyFixture(t.knex, 2, 1)
     const listening = await developer.post('/api/sessions').send({
       name: 'Listening only',
+      playerTitle: 'Listening round',
       format: 'pair',
       recipeIds,
       clipSets,

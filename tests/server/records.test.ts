@@ -235,6 +235,7 @@ describe('findings provenance', () => {
       answers: Number(answers[0].n),
       players: 4,
       excluded: 0,
+      headphoneExcluded: 0,
       lastAnswerAt: clock.now().toISOString(),
       lastChange: { action: 'session.closed', at: clock.now().toISOString() },
     })

@@ -101,15 +101,22 @@ export async function addPlayers(
   return ids
 }
 
-/** Creates and opens a session through the API; returns its id. */
+/**
+ * Creates and opens a session through the API; returns its id. A body without a player title
+ * gets a neutral one, as every session needs one. Fixture sets hold one take of each recipe,
+ * so opening accepts the single-take warning unless told not to.
+ */
 export async function openStudy(
   agent: Agent,
   body: Record<string, unknown>,
+  open: { acceptSameTake?: boolean } = { acceptSameTake: true },
 ): Promise<{ id: number; session: Record<string, unknown> }> {
-  const created = await agent.post('/api/sessions').send(body)
+  const created = await agent
+    .post('/api/sessions')
+    .send({ playerTitle: 'Listening session', ...body })
   if (created.status !== 201)
     throw new Error(`create: ${created.status} ${JSON.stringify(created.body)}`)
-  const opened = await agent.post(`/api/sessions/${created.body.session.id}/open`)
+  const opened = await agent.post(`/api/sessions/${created.body.session.id}/open`).send(open)
   if (opened.status !== 200)
     throw new Error(`open: ${opened.status} ${JSON.stringify(opened.body)}`)
   return { id: created.body.session.id, session: opened.body.session }

@@ -35,6 +35,7 @@ async function ratingBody(over: Record<string, unknown> = {}) {
   return {
     name: 'Damping study',
     purpose: 'Which treatment sounds darkest',
+    playerTitle: 'Evening listening',
     format: 'rating',
     recipeIds,
     clipSets,
@@ -171,6 +172,7 @@ describe('the session designer', () => {
     const solo = await addRecipe(t.knex, 'Lonely')
     const res = await developer.post('/api/sessions').send({
       name: 'Play alone',
+      playerTitle: 'Strings to try at home',
       format: 'playtest',
       recipeIds: [solo],
       deadline: isoDay(clock.now(), 3),
@@ -190,7 +192,7 @@ describe('the session designer', () => {
 })
 
 describe('a session from draft to closed', () => {
-  it('opens, locks the design once someone answered, keeps instructions and deadline editable, then closes', async () => {
+  it('opens, locks the design once someone answered, keeps the player words and deadline editable, then closes', async () => {
     const { id } = await openStudy(developer, await ratingBody())
     const [playerId] = await addPlayers(t.knex, 1)
     await developer.post(`/api/sessions/${id}/invitations`).send({ playerIds: [playerId] })
@@ -200,11 +202,13 @@ describe('a session from draft to closed', () => {
     const inv = await t.knex('invitations').where({ session_id: id }).first('id')
     await addAnswers(t.knex, inv.id, [0], clock.now().toISOString())
     const locked = await developer.patch(`/api/sessions/${id}`).send({ duplicates: 2 })
-    const editable = await developer
-      .patch(`/api/sessions/${id}`)
-      .send({ instructions: 'Take a break halfway.', deadline: isoDay(clock.now(), 20) })
+    const editable = await developer.patch(`/api/sessions/${id}`).send({
+      playerTitle: 'Evening listening, second week',
+      playerMessage: 'Take a break halfway.',
+      deadline: isoDay(clock.now(), 20),
+    })
     const closed = await developer.post(`/api/sessions/${id}/close`)
-    const afterClose = await developer.patch(`/api/sessions/${id}`).send({ instructions: 'x' })
+    const afterClose = await developer.patch(`/api/sessions/${id}`).send({ playerMessage: 'x' })
 
     expect(again.status).toBe(409)
     expect(beforeAnswers.status).toBe(200)
@@ -217,7 +221,8 @@ describe('a session from draft to closed', () => {
     expect(editable.body.session).toMatchObject({
       locked: true,
       answersCount: 1,
-      instructions: 'Take a break halfway.',
+      playerTitle: 'Evening listening, second week',
+      playerMessage: 'Take a break halfway.',
       deadline: isoDay(clock.now(), 20),
       duplicates: 1,
     })
@@ -294,6 +299,7 @@ describe('the preview', () => {
     const { recipeIds, clipSets } = await studyFixture(t.knex, 2, 1)
     const created = await developer.post('/api/sessions').send({
       name: 'Triangle preview',
+      playerTitle: 'Odd one out',
       format: 'triangle',
       recipeIds,
       clipSets,
@@ -439,11 +445,13 @@ describe('the demo sessions', () => {
         ['scale', 'PF-01'],
         ['phrase', 'PF-02'],
       ])
-        await addClip(d.knex, r.id, {
-          excerpt,
-          performer,
-          instrument: r.instrument === 'cello' ? 'VC-1' : 'VN-3',
-        })
+        // Two takes, as the demo records: the second serves twins and hidden repeats.
+        for (let take = 0; take < 2; take++)
+          await addClip(d.knex, r.id, {
+            excerpt,
+            performer,
+            instrument: r.instrument === 'cello' ? 'VC-1' : 'VN-3',
+          })
     const ctx = d.app.locals.ctx
 
     const made = await seedDemoSessions(ctx)

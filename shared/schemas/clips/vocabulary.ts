@@ -26,6 +26,12 @@ export const CLIP_LIMITS = {
   stringsAgeMaxDays: 3650,
   /** Files in one upload with a manifest. */
   batchMaxFiles: 200,
+  /**
+   * The shortest take, and so the shortest matched set: players compare clips by switching and
+   * looping a region while they play, and the shortest loop is 0.5 s (BS.1534 asks for loops
+   * of at least 500 ms; src/audio/syncPlayer.ts).
+   */
+  minSeconds: 0.5,
   /** The blind renditions are brought to this loudness (EBU R 128 programme level). */
   targetLufs: -23,
   /** No rendition sample may peak above this. */

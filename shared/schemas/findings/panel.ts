@@ -26,6 +26,8 @@ export interface PlayerReliabilityRow {
   flagged: boolean
   excluded: boolean
   exclusionReason: string | null
+  /** The headphone check failed; the player is left out unless an analyst took them back. */
+  headphoneFailed: boolean
   reason: FindingsReason
 }
 

@@ -28,6 +28,8 @@ export interface FindingsProvenance {
   /** Players with at least one answer. */
   players: number
   excluded: number
+  /** Of `excluded`, those left out by default because their headphone check failed. */
+  headphoneExcluded: number
   lastAnswerAt: string | null
   /** The latest audited change that can alter findings: exclusion, design edit, open, close. */
   lastChange: { action: string; at: string } | null

@@ -23,10 +23,19 @@ export type SessionStatus = (typeof SESSION_STATUSES)[number]
 export const clipSetSpec = z.strictObject({
   key: z.string().min(1).max(200),
   clipIds: z.array(z.number().int().positive()).min(1).max(20),
+  /**
+   * Second takes of recipes the set plays: served where a trial holds a recipe twice (a
+   * triangle's twin, a hidden repeat), so the two servings are different recordings.
+   */
+  twinClipIds: z.array(z.number().int().positive()).max(20).optional(),
 })
 export type ClipSetSpec = z.infer<typeof clipSetSpec>
 
+/** A player title fits a mail subject and the bar over the player's pages. */
+export const PLAYER_TITLE_MAX = 80
+
 export const sessionDesignFields = {
+  /** Staff only: players see the player title and message instead. */
   name: z.string().trim().min(1, 'Required').max(LIMITS.nameMax),
   purpose: z.string().trim().max(LIMITS.notesMax),
   format: z.enum(SESSION_FORMATS, 'Choose a format'),
@@ -41,7 +50,12 @@ export const sessionDesignFields = {
     .refine((a) => new Set(a.map((x) => x.key)).size === a.length, 'Two attributes share a key'),
   duplicates: z.number().int().min(0, 'Cannot be negative').max(50),
   allowNoPreference: z.boolean(),
-  instructions: z.string().trim().max(LIMITS.notesMax),
+  playerTitle: z
+    .string()
+    .trim()
+    .min(1, 'Required: the title players see')
+    .max(PLAYER_TITLE_MAX, `At most ${PLAYER_TITLE_MAX} characters`),
+  playerMessage: z.string().trim().max(LIMITS.notesMax),
   deadline: isoDate,
   reminderDaysBefore: z.number().int().min(0).max(30).nullable(),
 }
@@ -71,7 +85,7 @@ export const sessionDesignBody = z
     attributes: sessionDesignFields.attributes.default(DEFAULT_ATTRIBUTES),
     duplicates: sessionDesignFields.duplicates.default(0),
     allowNoPreference: sessionDesignFields.allowNoPreference.default(false),
-    instructions: sessionDesignFields.instructions.default(''),
+    playerMessage: sessionDesignFields.playerMessage.default(''),
     reminderDaysBefore: sessionDesignFields.reminderDaysBefore.default(2),
     timePointLabel: timePointLabel.nullable().default(null),
   })
@@ -93,7 +107,8 @@ export const updateSessionBody = z
     attributes: sessionDesignFields.attributes.optional(),
     duplicates: sessionDesignFields.duplicates.optional(),
     allowNoPreference: sessionDesignFields.allowNoPreference.optional(),
-    instructions: sessionDesignFields.instructions.optional(),
+    playerTitle: sessionDesignFields.playerTitle.optional(),
+    playerMessage: sessionDesignFields.playerMessage.optional(),
     deadline: sessionDesignFields.deadline.optional(),
     reminderDaysBefore: sessionDesignFields.reminderDaysBefore.optional(),
     timePointLabel: timePointLabel.nullable().optional(),
@@ -110,6 +125,12 @@ export const LOCKED_DESIGN_FIELDS = [
   'duplicates',
   'allowNoPreference',
 ] as const
+
+/** Opening a draft: an empty body, or the designer's acceptance of a single-take warning. */
+export const openSessionBody = z
+  .strictObject({ acceptSameTake: z.boolean('Say whether you accept the warning').optional() })
+  .default({})
+export type OpenSessionBody = z.input<typeof openSessionBody>
 
 export const timePointBody = z.strictObject({
   label: timePointLabel,

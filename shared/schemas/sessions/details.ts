@@ -33,6 +33,29 @@ export interface ResolvedClipSet extends ClipSetSpec {
   performerCode: string
   instrumentCode: string
   clips: ResolvedClip[]
+  /** Second takes, served where a trial holds a recipe twice. */
+  twins: ResolvedClip[]
+  /** The takes' original formats and the one format all renditions of the set share. */
+  format?: SetFormatReport
+}
+
+/** A recording's format and length. */
+export interface AudioFormatFacts {
+  sampleRate: number
+  channels: number
+  bitDepth: number
+  durationS: number
+}
+
+export interface SetFormatReport {
+  /** The chosen clips' originals (played clips, then second takes). */
+  originals: (AudioFormatFacts & { clipId: number })[]
+  /** What every rendition of the matched set is; all its takes decide, chosen or not. */
+  rendition: AudioFormatFacts
+  /** Takes in the matched set, chosen or not. */
+  takes: number
+  /** Every chosen clip's rendition is already written in that format. */
+  written: boolean
 }
 
 export interface TimePoint {
@@ -49,7 +72,9 @@ export interface SessionDetail extends SessionSummary {
   attributes: AttributeSpec[]
   duplicates: number
   allowNoPreference: boolean
-  instructions: string
+  /** What players see instead of the name and purpose, which stay with staff. */
+  playerTitle: string
+  playerMessage: string
   reminderDaysBefore: number | null
   seed: string
   /** Somebody has answered: the fields in LOCKED_DESIGN_FIELDS can no longer change. */
@@ -60,6 +85,12 @@ export interface SessionDetail extends SessionSummary {
   warnings: string[]
   /** Why the served record of this (older) session could not be rebuilt; findings refuse. */
   recordProblem: string | null
+  /**
+   * Sets where a recipe served twice has one take: players with tools could pair the files.
+   * Opening such a session asks the designer to accept it; when, and by whom, is kept.
+   */
+  sameTakeWarnings: string[]
+  sameTakeAccepted: { at: string; by: string | null } | null
   recipes: { id: number; name: string }[]
   /** The first session and every later time point, in order. */
   timePoints: TimePoint[]

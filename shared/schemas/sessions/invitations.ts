@@ -38,7 +38,15 @@ export interface InvitationRow {
   remindersSent: number
   answered: number
   trialCount: number
+  /**
+   * Staff only: where the player's headphone check stands ('retry': failed once, may try
+   * again; 'failed': failed after the retry, the player went on flagged). Null for a play-test,
+   * which has no check. Filled by the tracking list and the follow-up actions.
+   */
+  headphoneCheck?: HeadphoneCheckState | null
 }
+
+export type HeadphoneCheckState = 'passed' | 'retry' | 'failed' | 'not_done'
 
 export interface InviteResult {
   created: number
@@ -60,12 +68,26 @@ export interface PackingLine {
   recipeName: string
 }
 
+/**
+ * The labels that travel with the strings, one sheet per player: codes, QR codes, the player
+ * title and the fitting caution. No recipe and no staff name: players and anyone near the
+ * envelopes may read them.
+ */
 export interface LabelSheet {
+  playerTitle: string
+  players: {
+    playerCode: string
+    sets: LabelSet[]
+  }[]
+  caution: string
+}
+
+/** Staff only, printed apart from the labels: the key to every player's coded envelopes. */
+export interface PackingList {
+  sessionName: string
   players: {
     playerCode: string
     playerName: string | null
-    sets: LabelSet[]
-    packing: PackingLine[]
+    lines: PackingLine[]
   }[]
-  caution: string
 }

@@ -10,9 +10,10 @@ export const playerLinkQuery = z.object({
 
 /** What an invitation link opens, before the first trial. */
 export interface PlayerLanding {
-  sessionName: string
+  /** The session's player title and message: never its staff name or purpose. */
+  playerTitle: string
   format: SessionFormat
-  instructions: string
+  playerMessage: string
   deadline: string
   status: InvitationStatus
   cautions: string[]

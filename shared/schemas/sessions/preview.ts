@@ -25,9 +25,9 @@ export interface PreviewTrial {
 
 /** Exactly what one player sees: codes, scales and trials; no recipe, no repeat marks. */
 export interface SessionPreview {
-  sessionName: string
+  playerTitle: string
   format: SessionFormat
-  instructions: string
+  playerMessage: string
   deadline: string
   cautions: string[]
   attributes: AttributeSpec[]

@@ -16,10 +16,14 @@ export const changeWords = (action: string) =>
 
 const count = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : many}`
 
+/** How many of the excluded were left out by default for a failed headphone check. */
+const headphoneNote = (p: FindingsProvenance) =>
+  p.headphoneExcluded > 0 ? ` (${p.headphoneExcluded} for a failed headphone check)` : ''
+
 /**
  * One line saying what the findings were computed from, so that two printouts of the same
- * session can be told apart: "Computed from 312 answers of 12 players, 1 excluded; last answer
- * 2 Dec 2026 14:03; last change: player excluded, 2 Dec 2026 14:10".
+ * session can be told apart: "Computed from 312 answers of 12 players, 3 excluded (2 for a failed
+ * headphone check); last answer 2 Dec 2026 14:03; last change: player excluded, 2 Dec 2026 14:10".
  */
 export function provenanceLine(p: FindingsProvenance): string {
   const parts = [
@@ -27,7 +31,7 @@ export function provenanceLine(p: FindingsProvenance): string {
       ? 'No answers yet'
       : `Computed from ${count(p.answers, 'answer', 'answers')} of ${count(p.players, 'player', 'players')}, ${
           p.excluded === 0 ? 'none' : p.excluded
-        } excluded`,
+        } excluded${headphoneNote(p)}`,
   ]
   if (p.lastAnswerAt) parts.push(`last answer ${reportTime(p.lastAnswerAt)}`)
   if (p.lastChange)
