@@ -53,8 +53,9 @@ const PERFORMERS = [
 
 /**
  * Excerpts recorded a second time by a performer, as a session's twins and hidden repeats
- * need: another performance of the same passage, a touch slower and softer, so the two takes
- * are different recordings rather than one file served twice.
+ * need: another performance of the same passage, its notes pushed and pulled a little (the
+ * take lasts as long as the first), softer and slower to speak, so the two takes are different
+ * recordings rather than one file served twice.
  */
 const SECOND_TAKES = [
   { excerpt: 'scale', performer: 'PF-01' },
@@ -87,10 +88,13 @@ function notes(
   seq: readonly (readonly [number, number])[],
   tempo = 1,
 ) {
-  const parts = seq.map(([semitones, seconds]) =>
+  // Rubato that cancels out: notes alternately longer and shorter (an odd last note as written).
+  const stretch = (i: number) =>
+    i === seq.length - 1 && seq.length % 2 === 1 ? 1 : i % 2 === 0 ? tempo : 2 - tempo
+  const parts = seq.map(([semitones, seconds], i) =>
     synth.bowedTone({
       f0: f0 * 2 ** (semitones / 12),
-      seconds: seconds * tempo,
+      seconds: seconds * stretch(i),
       attackSeconds: attack,
       harmonicAmplitudes: harmonics(voice.rollOff),
       peakDbfs: level,

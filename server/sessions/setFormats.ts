@@ -153,15 +153,18 @@ export async function reviewSetFormats<S extends ReviewedSet>(
     const setSeconds = format.frames / format.sampleRate
     const shortest =
       members[sources.findIndex((s) => framesAt(s, format.sampleRate) === format.frames)]
-    for (const take of chosen) {
-      if (framesAt(sourceOfRow(take), format.sampleRate) <= format.frames) continue
-      const cut = soundAfter(take, setSeconds)
-      if (cut >= WARN_CUT_SECONDS)
-        warnings.push(
-          `${label(set)}: trimming to ${setSeconds.toFixed(1)} s (the shortest take, clip ` +
-            `${shortest.id}) cuts ${cut.toFixed(1)} s of sound from ${name(take)}`,
-        )
-    }
+    // One warning per set, naming every clip that loses sound, longest cut first.
+    const cuts = chosen
+      .filter((take) => framesAt(sourceOfRow(take), format.sampleRate) > format.frames)
+      .map((take) => ({ take, cut: soundAfter(take, setSeconds) }))
+      .filter((c) => c.cut >= WARN_CUT_SECONDS)
+      .sort((x, y) => y.cut - x.cut)
+    if (cuts.length)
+      warnings.push(
+        `${label(set)}: trimming to ${setSeconds.toFixed(1)} s (the shortest take, clip ` +
+          `${shortest.id}) cuts ` +
+          cuts.map((c) => `${c.cut.toFixed(1)} s of sound from ${name(c.take)}`).join(', '),
+      )
 
     reports.set(set, {
       originals: chosen.map((t) => ({

@@ -94,3 +94,25 @@ describe('the clip-set picker of a saved design', () => {
     expect(kept.text()).toContain('Archived: kept in this design')
   })
 })
+
+describe('takes in the clip-set picker', () => {
+  const twoTakes: MatchedSetSection[] = [
+    {
+      ...sections[0],
+      sets: [{ ...sections[0].sets[0], cells: { 1: [7, 8], 2: [9] }, complete: true }],
+    },
+  ]
+
+  it('shows how many takes each recipe has and chooses the second as the twin', async () => {
+    fakeServer(on('GET', '/clips/matched-sets', () => ({ body: { sections: twoTakes } })))
+    const w = mount(ClipSetPicker, { props: { recipeIds: [1, 2], modelValue: [] } })
+    await flushPromises()
+    const takes = w.find('[data-test=takes]')
+    expect(takes.text()).toContain('Harewood A plain 2 · Harewood A heavy 1')
+    expect(takes.text()).toContain('one take: Harewood A heavy')
+
+    await w.find('tbody .n-checkbox').trigger('click')
+    const chosen = w.emitted('update:modelValue')!.at(-1)![0]
+    expect(chosen).toEqual([{ key: '3|PF-02|VN-3', clipIds: [7, 9], twinClipIds: [8] }])
+  })
+})

@@ -146,6 +146,7 @@ describe('blinding in the demo', () => {
       w.seen.filter((s) => s.what === 'POST /api/player/headphone' && s.status === 200),
     )
     expect(checks.length).toBeGreaterThan(5)
+
     // The demo's sets hold a second take of every recipe: twins are different recordings.
     expect(result.twinPairs).toBeGreaterThanOrEqual(16)
     expect(result.highestTwin).toBeLessThan(0.999)
@@ -310,6 +311,12 @@ describe('blinding of sessions built in every format', () => {
 
     expect(result.walks).toHaveLength(sessionIds.length * 2)
     expect(result.walks.flatMap((w) => w.audio).length).toBeGreaterThan(40)
+    // Answers naming another trial's codes are refused, never stored against this trial.
+    const foreign = result.walks.flatMap((w) =>
+      w.seen.filter((s) => s.what.endsWith("another trial's code")),
+    )
+    expect(foreign.length).toBeGreaterThan(10)
+    expect(foreign.filter((s) => s.status !== 422)).toEqual([])
     // One-take sessions serve twins that correlate almost perfectly: accepted, so allowed.
     expect(result.highestTwin).toBeGreaterThan(0.999)
     expect(result.problems).toEqual([])

@@ -164,8 +164,14 @@ export async function walk(
         const answer = answerFor(trial, keys)
         keep(what, await call(path, { answer }))
         keep(`${what} again`, await call(path, { answer }))
-        // An answer meant for another trial: refused, and the refusal names nothing.
+        // Answers meant for another trial: refused, and the refusals name nothing.
         keep(`${what} wrong`, await call(path, { answer: { kind: 'triangle', odd: 1 } }))
+        const other = plan?.trials.find((o) => o.index !== trial.index && o.clips.length)
+        if (other && trial.kind !== 'rating' && trial.kind !== 'playtest')
+          keep(
+            `${what} another trial's code`,
+            await call(path, { answer: answerFor({ ...trial, clips: other.clips }, keys) }),
+          )
       }
       keep(`${what} past the end`, await call(r.path.replace(':trialIndex', '999'), {}))
       continue
