@@ -118,3 +118,25 @@ describe('the session page', () => {
     ])
   })
 })
+
+describe('single takes on the session page', () => {
+  const warning =
+    "Set 'phrase · PF-02 · VN-3': Harewood A heavy has one take, so a trial that holds such a recipe twice plays the same recording twice."
+
+  it('shows the single-take warning until it is accepted, then who accepted it and when', async () => {
+    const before = await show(detail({ status: 'draft', sameTakeWarnings: [warning] }))
+    expect(before.find('[data-test=same-take]').text()).toContain('Harewood A heavy has one take')
+    expect(before.find('[data-test=same-take-accepted]').exists()).toBe(false)
+
+    const after = await show(
+      detail({
+        sameTakeWarnings: [warning],
+        sameTakeAccepted: { at: '2026-11-30T10:00:00.000Z', by: 'dev@example.test' },
+      }),
+    )
+    expect(after.find('[data-test=same-take]').exists()).toBe(false)
+    expect(after.find('[data-test=same-take-accepted]').text()).toContain(
+      'accepted by dev@example.test on 2026-11-30',
+    )
+  })
+})
