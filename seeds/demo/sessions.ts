@@ -11,7 +11,10 @@ import { invitePlayers } from '../../server/invitations/invite'
 import { loadSession } from '../../server/sessions/rows'
 import { servedTrials } from '../../server/sessions/servedRecord'
 import { playerLanding } from '../../server/player/landing'
-import { giveConsent } from '../../server/player/progress'
+import { confirmLevel, giveConsent } from '../../server/player/progress'
+import { recordHeadphoneCheck, startHeadphoneCheck } from '../../server/player/headphone'
+import { hasHeadphoneCheck } from '../../server/player/headphoneRecord'
+import { HEADPHONE_RETRY } from '../../shared/headphoneCheck'
 import { saveAnswer } from '../../server/player/saveAnswer'
 import { sessionDesignBody } from '../../shared/schemas/sessions'
 import { trialAnswer } from '../../shared/schemas/rating'
@@ -21,12 +24,14 @@ import { SESSIONS, type DemoSession } from './story'
 /*
  * Plays the demo story through the same services people's actions call: a developer designs,
  * opens and closes each session, invites its players, and each player opens the link, gives
- * consent and answers trial by trial. A clock of the demo's own sets each step on its day, so a
- * closed session's answers lie in the past and its findings read as they would have then.
+ * consent, takes the headphone check and sets the level where the session is listened to, and
+ * answers trial by trial. A clock of the demo's own sets each step on its day, so a closed
+ * session's answers lie in the past and its findings read as they would have then.
  */
 
 const DAY = 86_400_000
 const HOUR = 3_600_000
+const MINUTE = 60_000
 
 /** A clock the story moves step by step. */
 function storyClock(start: Date): Clock & { set(at: Date): void } {
@@ -86,9 +91,34 @@ async function clipSet(
   }
 }
 
-/** Each player opens their link, consents, and answers as far as the story says. */
+type StoryContext = AppContext & { clock: ReturnType<typeof storyClock> }
+
+const later = (ctx: StoryContext, ms: number) =>
+  ctx.clock.set(new Date(ctx.clock.now().getTime() + ms))
+
+/**
+ * The headphone check as the player's page takes it: the server deals each attempt and scores
+ * the picks. The first `failures` attempts miss half the sets of tones; after a failure the
+ * player waits out the pause and tries again, until the attempts allowed are used up.
+ */
+async function takeHeadphoneCheck(ctx: StoryContext, token: string, failures: number) {
+  for (let attempt = 1; attempt <= HEADPHONE_RETRY.attempts; attempt++) {
+    const deal = await startHeadphoneCheck(ctx, token)
+    const miss = attempt <= failures ? deal.trials.length / 2 : 0
+    const responses = deal.trials.map(({ tones }, i) => {
+      const right = tones.indexOf('quiet')
+      return i < miss ? (right + 1) % 3 : right
+    })
+    later(ctx, 2 * MINUTE)
+    const state = await recordHeadphoneCheck(ctx, token, { attempt: deal.attempt, responses })
+    if (state.headphone?.status !== 'retry') return
+    later(ctx, HEADPHONE_RETRY.pauseSeconds * 1000)
+  }
+}
+
+/** Each player opens their link, consents, takes the checks before listening, and answers as far as the story says. */
 async function playersAnswer(
-  ctx: AppContext & { clock: ReturnType<typeof storyClock> },
+  ctx: StoryContext,
   sessionId: number,
   demo: DemoSession,
   recipeIds: number[],
@@ -114,6 +144,12 @@ async function playersAnswer(
     const count = given === 'all' ? trials.length : given
     if (count === 0) continue
     await giveConsent(ctx, token)
+    if (hasHeadphoneCheck(session.format)) {
+      later(ctx, MINUTE)
+      await takeHeadphoneCheck(ctx, token, demo.headphoneFailures?.[index] ?? 0)
+      later(ctx, MINUTE)
+      await confirmLevel(ctx, token)
+    }
     for (const [k, trial] of trials.slice(0, count).entries()) {
       ctx.clock.set(at(k + 1))
       const answer = demoAnswer(trial, { recipeRank, playerIndex: index, trialIndex: k, demo })

@@ -2,7 +2,8 @@ import type { SessionFormat } from '../../shared/schemas/sessions'
 
 /*
  * The demo sessions of Larchmere String Works, an invented string maker, in every state: a
- * draft, an open rating session with players part-way, a closed triangle test everybody
+ * draft, an open rating session with players part-way (one passed the headphone check on the
+ * retry, one failed it twice and is left out of its findings), a closed triangle test everybody
  * finished, and a play-test followed over time; and two closed sessions whose findings tell a
  * story (a clear brightness effect, no warmth difference, one player answering at random; a
  * lean towards the light compound). Days count from the day the demo is seeded.
@@ -30,6 +31,11 @@ export interface DemoSession {
   profiled?: boolean
   /** Invitation index of a player who answers at random (the reliability flag's demo). */
   randomPlayer?: number
+  /**
+   * Failed attempts at the headphone check, by invitation index (everyone else passes at the
+   * first): 1 fails, waits out the pause and passes the retry; 2 fails both and goes on flagged.
+   */
+  headphoneFailures?: Record<number, number>
 }
 
 const VIOLINISTS = ['ilse.marchetti', 'noor.halloran', 'saskia.lindqvist', 'wren.adebayo']
@@ -85,6 +91,7 @@ export const SESSIONS: DemoSession[] = [
     playerMessage: 'Use headphones in a quiet room. Rate each recording on every scale.',
     players: [...VIOLINISTS, ...MORE_VIOLINISTS],
     progress: ['all', 6, 2, 0],
+    headphoneFailures: { 1: 1, 2: 2 },
   },
   {
     name: 'Tessel D: can players hear round against flat winding?',

@@ -4,6 +4,7 @@
  * them and sends back which tone the player picked, and the server counts the right picks and
  * applies the pass mark. A failed check may be taken once more after a pause; a second failure
  * lets the player go on, and the invitation stands flagged (findings leave it out by default).
+ * Until the check is finished the level step and the answers wait (headphoneGate.ts).
  *
  * The browser makes the sound, so what it is dealt necessarily says which tone is the quiet
  * one: this stops a made-up score, not a rewritten page. The deal is about tones only and says

@@ -44,20 +44,31 @@ export const isScored = (r: HeadphoneCheckRow): r is ScoredCheck =>
 export const dealtTones = (r: HeadphoneCheckRow) =>
   JSON.parse(r.dealt ?? '[]') as [ToneKind, ToneKind, ToneKind][]
 
-/** A passed attempt passes; otherwise the allowed attempts, all failed, flag the invitation. */
+/**
+ * A passed attempt passes; otherwise the allowed attempts, all failed, flag the invitation.
+ * `attempts` is the highest scored attempt number, 0 before any is scored. The answer path
+ * reads these two figures in one query (headphoneGate.ts), so the rule lives here once.
+ */
+export function statusOf(anyPassed: boolean, attempts: number): HeadphoneStatus | null {
+  if (attempts <= 0) return null
+  if (anyPassed) return 'passed'
+  return attempts >= HEADPHONE_RETRY.attempts ? 'failed' : 'retry'
+}
+
+/** Finished: passed, or failed at the last attempt allowed. Only then do the trials open. */
+export const isFinished = (status: HeadphoneStatus | null) =>
+  status === 'passed' || status === 'failed'
+
+/** Where one invitation's check stands, from its rows. */
 export function recordOf(rows: HeadphoneCheckRow[]): HeadphoneRecord {
   const scored = rows.filter(isScored).sort((a, b) => a.attempt - b.attempt)
   const latest = scored.at(-1) ?? null
   const attempts = latest?.attempt ?? 0
-  const status: HeadphoneStatus | null = !latest
-    ? null
-    : scored.some((r) => Boolean(r.passed))
-      ? 'passed'
-      : attempts >= HEADPHONE_RETRY.attempts
-        ? 'failed'
-        : 'retry'
   return {
-    status,
+    status: statusOf(
+      scored.some((r) => Boolean(r.passed)),
+      attempts,
+    ),
     attempts,
     latest,
     pending: rows.find((r) => !isScored(r)) ?? null,

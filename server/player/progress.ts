@@ -13,6 +13,7 @@ import { formatOf } from '../formats/index.ts'
 import { firstNameOf } from '../invitations/mail'
 import type { PlayerState } from '../../shared/schemas/rating'
 import { checkRows, playerHeadphoneOf, recordOf } from './headphoneRecord'
+import { assertHeadphoneFinished } from './headphoneGate'
 
 /** Where the player stands, as every step before the trials answers it. */
 export async function stateOf(
@@ -69,13 +70,18 @@ export async function playerState(ctx: AppContext, token: string): Promise<Playe
   return stateOf(ctx, access)
 }
 
-/** One step of the way in, written only while the link may still change something. */
+/**
+ * One step of the way in, written only while the link may still change something; `first`
+ * checks what the step needs before it (it may read, and refuse).
+ */
 async function step(
   ctx: AppContext,
   token: string,
   change: (access: PlayerAccess, now: string) => Record<string, unknown>,
+  first?: (access: PlayerAccess) => Promise<void>,
 ): Promise<PlayerState> {
   const access = await openForAnswers(ctx, token)
+  await first?.(access)
   const now = ctx.clock.now()
   await ctx.knex.transaction(async (trx) => {
     await assertStillOpen(trx, access, now)
@@ -94,8 +100,17 @@ export const giveConsent = (ctx: AppContext, token: string) =>
     opened_at: inv.opened_at ?? now,
   }))
 
+/**
+ * In a listening session the level follows the finished headphone check, as on the player's
+ * page; a play-test has no check and no wait.
+ */
 export const confirmLevel = (ctx: AppContext, token: string) =>
-  step(ctx, token, ({ inv }, now) => {
-    assertConsent(inv)
-    return { level_set_at: now }
-  })
+  step(
+    ctx,
+    token,
+    (_access, now) => ({ level_set_at: now }),
+    async ({ inv, session }) => {
+      assertConsent(inv)
+      await assertHeadphoneFinished(ctx.knex, session, inv.id)
+    },
+  )

@@ -9,7 +9,7 @@ import { systemClock } from '../../server/clock'
 import { signInvitation } from '../../server/auth/invitationTokens'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
 import { addPlayers, isoDay, openStudy, studyFixture } from '../server/sessionFixtures'
-import { answerFor } from '../server/playerFixtures'
+import { answerFor, passHeadphoneCheck } from '../server/playerFixtures'
 import { round, type Figure } from './figure'
 
 const PLAYERS = 500
@@ -63,7 +63,8 @@ export async function submissionFigures(): Promise<Figure[]> {
       .select('id', 'token_id')
     const deadline = isoDay(new Date(), 7)
 
-    // Each player consents and fetches their plan, as the rating page does before answering.
+    // Each player consents, passes the headphone check and fetches their plan, as the rating
+    // page does before answering; none of it is timed.
     const bodies: { path: string; body: string }[] = []
     for (const inv of invitations) {
       const token = signInvitation(
@@ -73,6 +74,7 @@ export async function submissionFigures(): Promise<Figure[]> {
         deadline,
       )
       await request(base).post('/api/player/consent').send({ token })
+      await passHeadphoneCheck(base, token)
       const plan = (await request(base).get('/api/player/plan').query({ token })).body.plan
       const keys = plan.attributes.map((a: { key: string }) => a.key)
       for (const trial of plan.trials)

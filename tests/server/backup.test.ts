@@ -29,7 +29,7 @@ import { hashFile } from '../../server/backup/files'
 import { BackupError, type BackupManifest } from '../../server/backup/manifest'
 import { fakeMailer, signInAs, type Agent, type TestApp } from './helpers'
 import { addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
-import { answerFor, giveAudio, invitedOf } from './playerFixtures'
+import { answerFor, giveAudio, invitedOf, passHeadphoneCheck } from './playerFixtures'
 
 const KEYS = ['brightness', 'bow_response', 'warmth']
 const PROJECT = new URL('../..', import.meta.url).pathname
@@ -108,6 +108,7 @@ beforeAll(async () => {
   const plans = []
   for (const p of await invitedOf(t, sessionId)) {
     await request(t.app).post('/api/player/consent').send({ token: p.token }).expect(200)
+    await passHeadphoneCheck(t.app, p.token)
     const plan = (await request(t.app).get('/api/player/plan').query({ token: p.token })).body.plan
     plans.push({ token: p.token, trials: plan.trials })
   }

@@ -4,7 +4,8 @@ import { parse as parseCsv } from 'csv-parse/sync'
 import { fixedClock } from '../../server/clock'
 import type { SessionFindings } from '../../shared/schemas/findings'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
-import { addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
+import { addClip, addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
+import { seedDemoSessions } from '../../seeds/demo/sessions'
 import { headphonePicks, invitedOf, takeHeadphoneCheck, type Invited } from './playerFixtures'
 
 // The headphone check as the server deals, scores and counts it; the pause and the one retry;
@@ -237,6 +238,169 @@ describe('the headphone check, dealt and scored by the server', () => {
   })
 })
 
+describe('the trials wait for the headphone check', () => {
+  // The player is told what to do and nothing else: not their score, not the trials.
+  const REFUSAL = {
+    error: {
+      code: 'conflict',
+      message: 'Finish the headphone check first: it takes about two minutes.',
+    },
+  }
+  const level = (token: string) => api().post('/api/player/level').send({ token })
+  const answer = (token: string, index: number) =>
+    api()
+      .put(`/api/player/answers/${index}`)
+      .send({ token, answer: { kind: 'rating', values: { brightness: 50 } } })
+  const stored = (invitationId: number) => t.knex('answers').where({ invitation_id: invitationId })
+  let invited: Invited[]
+  let sessionId: number
+  beforeAll(async () => {
+    ;({ id: sessionId, invited } = await study('rating', 3))
+  })
+
+  it('refuses the level and every answer before the check, yet serves the plan', async () => {
+    const p = invited[0]
+    const plan = await api().get('/api/player/plan').query({ token: p.token })
+    const early = [await level(p.token), await answer(p.token, 0), await answer(p.token, 99)]
+    // A dealt attempt not yet answered is not a finished check either.
+    await start(p.token)
+    const dealt = [await level(p.token), await answer(p.token, 1)]
+
+    // The player's page needs the plan before the check: its format decides whether there is
+    // a check at all, and the level step plays the first clip.
+    expect(plan.status).toBe(200)
+    for (const res of [...early, ...dealt]) {
+      expect(res.status).toBe(409)
+      expect(res.body).toEqual(REFUSAL)
+    }
+    expect(await stored(p.id)).toHaveLength(0)
+    expect((await state(p.token)).body).toMatchObject({ levelSetAt: null, answers: [] })
+  })
+
+  it('lets the player on once the check is passed', async () => {
+    const p = invited[0]
+    await takeHeadphoneCheck(t, p.token)
+    const set = await level(p.token)
+    const saved = await answer(p.token, 0)
+
+    expect(set.status).toBe(200)
+    expect(set.body.levelSetAt).toBe(clock.now().toISOString())
+    expect(saved.status).toBe(200)
+    expect(saved.body).toMatchObject({ saved: true, answered: 1 })
+  })
+
+  it('still refuses after one failure, while the retry is open, and lets on after the second', async () => {
+    const p = invited[1]
+    await takeHeadphoneCheck(t, p.token, 2)
+    const afterOne = [await level(p.token), await answer(p.token, 0)]
+    clock.advance(30_000)
+    const pauseOver = [await level(p.token), await answer(p.token, 0)]
+    await takeHeadphoneCheck(t, p.token, 2)
+    const set = await level(p.token)
+    const saved = await answer(p.token, 0)
+
+    for (const res of [...afterOne, ...pauseOver]) {
+      expect(res.status).toBe(409)
+      expect(res.body).toEqual(REFUSAL)
+    }
+    expect(set.status).toBe(200)
+    expect(saved.status).toBe(200)
+    expect(await stored(p.id)).toHaveLength(1)
+    // Let on, but left out of the findings by default.
+    const code = (await tracking(sessionId)).find((r) => r.id === p.id)!.playerCode
+    const f = (await analyst.get(`/api/findings/${sessionId}`)).body as SessionFindings
+    expect(f.reliability.players.find((r) => r.playerCode === code)).toMatchObject({
+      excluded: true,
+      exclusionReason: 'headphone check failed',
+      headphoneFailed: true,
+    })
+    expect(f.provenance).toMatchObject({ headphoneExcluded: 1 })
+  })
+
+  it('asks a play-test for no check before the level or the answers', async () => {
+    const {
+      invited: [p],
+    } = await study('playtest', 1)
+    const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+    const set = await level(p.token)
+    const saved = await api()
+      .put(`/api/player/answers/${plan.trials[0].index}`)
+      .send({ token: p.token, answer: { kind: 'playtest', values: { brightness: 50 } } })
+
+    expect(set.status).toBe(200)
+    expect(saved.status).toBe(200)
+    expect(await stored(p.id)).toHaveLength(1)
+  })
+})
+
+describe('answers stored before the check was required', () => {
+  let sessionId: number
+  let older: Invited
+  let olderCode: string
+  // Each player rates every clip alike, so a recipe's mean is worked out by hand.
+  const VALUES = [20, 40]
+
+  beforeAll(async () => {
+    const s = await study('rating', 2)
+    sessionId = s.id
+    older = s.invited[1]
+    for (const [i, p] of s.invited.entries()) {
+      await takeHeadphoneCheck(t, p.token)
+      const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+      const values = Object.fromEntries(KEYS.map((k) => [k, VALUES[i]]))
+      for (const trial of plan.trials)
+        await api()
+          .put(`/api/player/answers/${trial.index}`)
+          .send({ token: p.token, answer: { kind: 'rating', values } })
+          .expect(200)
+    }
+    // An older database: the answers are there, and no check was ever recorded for them.
+    await t.knex('headphone_checks').where({ invitation_id: older.id }).delete()
+    olderCode = (await tracking(sessionId)).find((r) => r.id === older.id)!.playerCode
+  })
+
+  it('still reads them, for the player and in the findings, counted as not done', async () => {
+    const mine = await state(older.token)
+    const f = (await analyst.get(`/api/findings/${sessionId}`)).body as SessionFindings
+    const row = (await tracking(sessionId)).find((r) => r.id === older.id)!
+
+    expect(mine.status).toBe(200)
+    expect(mine.body.answers).toHaveLength(2)
+    expect(mine.body.answers[0].answer).toEqual({
+      kind: 'rating',
+      values: { brightness: 40, bow_response: 40, warmth: 40 },
+    })
+    expect(mine.body.headphone).toBeNull()
+    expect(row.headphoneCheck).toBe('not_done')
+    expect(f.reliability.players.find((p) => p.playerCode === olderCode)).toMatchObject({
+      excluded: false,
+      exclusionReason: null,
+      headphoneFailed: false,
+    })
+    expect(f.provenance).toMatchObject({ excluded: 0, headphoneExcluded: 0, players: 2 })
+    // (20 + 40) / 2 = 30 on every attribute, both players counted; sd = √((10² + 10²) / 1).
+    for (const a of f.attributes)
+      for (const m of a.recipes) {
+        expect(m.n).toBe(2)
+        expect(m.mean).toBeCloseTo(30, 10)
+        expect(m.sd).toBeCloseTo(Math.sqrt(200), 10)
+      }
+  })
+
+  it('refuses a new save from that player until the check is finished', async () => {
+    const before = await t.knex('answers').where({ invitation_id: older.id }).orderBy('id')
+    const res = await api()
+      .put(`/api/player/answers/${before[0].trial_index}`)
+      .send({ token: older.token, answer: { kind: 'rating', values: { brightness: 99 } } })
+
+    expect(res.status).toBe(409)
+    expect(res.body.error.message).toBe(
+      'Finish the headphone check first: it takes about two minutes.',
+    )
+    expect(await t.knex('answers').where({ invitation_id: older.id }).orderBy('id')).toEqual(before)
+  })
+})
+
 describe('a play-test', () => {
   it('has no headphone check, and its tracking shows none', async () => {
     const { id, invited } = await study('playtest', 1)
@@ -396,5 +560,97 @@ describe('findings and a failed headphone check', () => {
     expect(JSON.parse(audit.details)).toMatchObject({ rule: 'headphone check failed' })
     expect(await t.knex('headphone_inclusions').where({ session_id: sessionId })).toHaveLength(0)
     expect(await t.knex('exclusions').where({ session_id: sessionId })).toHaveLength(0)
+  })
+})
+
+describe('the demo', () => {
+  let d: TestApp
+  let reader: Agent
+  beforeAll(async () => {
+    d = await buildApp()
+    // The demo's recordings as rows: two takes of each matched set the story uses.
+    const recipes: { id: number; instrument: string }[] = await d
+      .knex('recipes')
+      .whereLike('name', 'Aurel A %')
+      .orWhereLike('name', 'Tessel D %')
+      .select('id', 'instrument')
+    for (const r of recipes)
+      for (const [excerpt, performer] of [
+        ['scale', 'PF-01'],
+        ['phrase', 'PF-02'],
+      ])
+        for (let take = 0; take < 2; take++)
+          await addClip(d.knex, r.id, {
+            excerpt,
+            performer,
+            instrument: r.instrument === 'cello' ? 'VC-1' : 'VN-3',
+          })
+    await seedDemoSessions(d.app.locals.ctx)
+    reader = await signInAs(d.app, 'analyst')
+  })
+  afterAll(() => d.close())
+
+  const sessionsOf = (where: Record<string, string>) =>
+    d.knex('sessions').where(where).select('id', 'format', 'status') as Promise<
+      { id: number; format: string; status: string }[]
+    >
+  const checksOf = (sessionId: number) =>
+    d
+      .knex('headphone_checks as h')
+      .join('invitations as i', 'i.id', 'h.invitation_id')
+      .where('i.session_id', sessionId)
+      .orderBy(['i.player_index', 'h.attempt'])
+      .select('i.player_index', 'h.attempt', 'h.passed', 'h.dealt_at', 'h.at')
+
+  it('shows the open round with a retry passed and a player left out after two failures', async () => {
+    const [open] = await sessionsOf({ player_title: 'Winter listening round' })
+    const f = (await reader.get(`/api/findings/${open.id}`)).body as SessionFindings
+    const rows = (await reader.get(`/api/sessions/${open.id}/invitations`)).body.invitations as {
+      playerCode: string
+      headphoneCheck: string
+    }[]
+    const checks = await checksOf(open.id)
+
+    expect(open.status).toBe('open')
+    expect(rows.slice(0, 4).map((r) => r.headphoneCheck)).toEqual([
+      'passed',
+      'passed',
+      'failed',
+      'not_done',
+    ])
+    expect(checks.map((c) => [c.player_index, c.attempt, Boolean(c.passed)])).toEqual([
+      [0, 1, true],
+      [1, 1, false],
+      [1, 2, true],
+      [2, 1, false],
+      [2, 2, false],
+    ])
+    // Each retry waited out the pause after the failure before it.
+    for (const [a, b] of [
+      [checks[1], checks[2]],
+      [checks[3], checks[4]],
+    ])
+      expect(Date.parse(b.dealt_at) - Date.parse(a.at)).toBeGreaterThanOrEqual(30_000)
+    const left = f.reliability.players.filter((p) => p.excluded)
+    expect(left).toEqual([
+      expect.objectContaining({
+        playerCode: rows[2].playerCode,
+        exclusionReason: 'headphone check failed',
+        headphoneFailed: true,
+      }),
+    ])
+    expect(f.provenance).toMatchObject({ excluded: 1, headphoneExcluded: 1 })
+  })
+
+  it('has every player of a closed listening session pass at the first attempt, none left out', async () => {
+    const closed = (await sessionsOf({ status: 'closed' })).filter((x) => x.format !== 'playtest')
+    expect(closed.map((x) => x.format).sort()).toEqual(['pair', 'rating', 'triangle'])
+    for (const x of closed) {
+      const f = (await reader.get(`/api/findings/${x.id}`)).body as SessionFindings
+      const checks = await checksOf(x.id)
+      expect(checks.length).toBe(f.provenance.players)
+      expect(checks.every((c) => c.attempt === 1 && Boolean(c.passed))).toBe(true)
+      expect(f.provenance.headphoneExcluded).toBe(0)
+    }
   })
 })

@@ -7,7 +7,14 @@ import { fixedClock } from '../../server/clock'
 import { byteRange } from '../../server/http/sendAudio'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
 import { addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
-import { answerFor, giveAudio, invitedOf, takeHeadphoneCheck, type Invited } from './playerFixtures'
+import {
+  answerFor,
+  giveAudio,
+  invitedOf,
+  passHeadphoneCheck,
+  takeHeadphoneCheck,
+  type Invited,
+} from './playerFixtures'
 
 const DAY = 86_400_000
 const KEYS = ['brightness', 'bow_response', 'warmth']
@@ -63,9 +70,12 @@ const put = (token: string, index: number, answer: unknown) =>
 const answerRows = (invitationId: number) =>
   t.knex('answers').where({ invitation_id: invitationId }).orderBy('trial_index')
 
+/** Consent, and the headphone check where the session is listened to: ready for the trials. */
 async function consented(p: Invited) {
   await api().post('/api/player/consent').send({ token: p.token }).expect(200)
-  return plan(p.token)
+  const view = await plan(p.token)
+  if (view.format !== 'playtest') await passHeadphoneCheck(t.app, p.token)
+  return view
 }
 
 describe('the player path', () => {
@@ -334,10 +344,11 @@ describe('saving an answer', () => {
 describe('bad answers', () => {
   let p: Invited
   let other: Invited
+  let unchecked: Invited
   let trials: { index: number; kind: 'rating'; clips: { code: number }[] }[]
   beforeAll(async () => {
-    const s = await study('rating', 2)
-    ;[p, other] = s.invited
+    const s = await study('rating', 3)
+    ;[p, other, unchecked] = s.invited
     trials = (await consented(p)).trials
   })
 
@@ -407,17 +418,20 @@ describe('bad answers', () => {
   })
 
   it('refuses headphone picks that are not tone 1, 2 or 3, or fewer than the tones dealt', async () => {
-    const dealt = await api().post('/api/player/headphone/start').send({ token: p.token })
+    // A player who has not taken the check yet (the others passed it to reach the trials).
+    const q = unchecked
+    await api().post('/api/player/consent').send({ token: q.token }).expect(200)
+    const dealt = await api().post('/api/player/headphone/start').send({ token: q.token })
     const { attempt } = dealt.body
     const outside = await api()
       .post('/api/player/headphone')
-      .send({ token: p.token, attempt, responses: [0, 1, 2, 0, 1, 3] })
+      .send({ token: q.token, attempt, responses: [0, 1, 2, 0, 1, 3] })
     const short = await api()
       .post('/api/player/headphone')
-      .send({ token: p.token, attempt, responses: [0, 1, 2] })
+      .send({ token: q.token, attempt, responses: [0, 1, 2] })
     const selfScored = await api()
       .post('/api/player/headphone')
-      .send({ token: p.token, correct: 6, trials: 6 })
+      .send({ token: q.token, correct: 6, trials: 6 })
 
     expect(dealt.status).toBe(200)
     expect(outside.status).toBe(422)
@@ -425,7 +439,7 @@ describe('bad answers', () => {
     expect(short.status).toBe(422)
     expect(short.body.error.fields.responses[0]).toBe('Answer all 6 sets of tones')
     expect(selfScored.status).toBe(422)
-    const row = await t.knex('headphone_checks').where({ invitation_id: p.id }).first()
+    const row = await t.knex('headphone_checks').where({ invitation_id: q.id }).first()
     expect(row.correct).toBeNull()
   })
 

@@ -6,6 +6,7 @@ import { encodeWav, synth } from '../../server/audio/index.ts'
 import { mediaFolders } from '../../server/clips/storage'
 import { signInvitation } from '../../server/auth/invitationTokens'
 import type { TestApp } from './helpers'
+import type { PlayerState } from '../../shared/schemas/rating'
 
 // Sessions for the player's path: clips with real rendition files, and invitation tokens
 // signed the way the mail signs them.
@@ -107,4 +108,21 @@ export async function takeHeadphoneCheck(t: TestApp, token: string, wrong = 0) {
   return request(t.app)
     .post('/api/player/headphone')
     .send({ token, attempt: deal.attempt, responses: headphonePicks(deal, wrong) })
+}
+
+/**
+ * Passes the headphone check at the first attempt, as a player who hears it: in a listening
+ * session the level step and the answers wait for it. `app` is the app or a server's address.
+ */
+export async function passHeadphoneCheck(app: Parameters<typeof request>[0], token: string) {
+  const dealt = await request(app).post('/api/player/headphone/start').send({ token })
+  if (dealt.status !== 200)
+    throw new Error(`the headphone check was not dealt: ${dealt.status} ${dealt.text}`)
+  const deal = dealt.body as Deal
+  const passed = await request(app)
+    .post('/api/player/headphone')
+    .send({ token, attempt: deal.attempt, responses: headphonePicks(deal) })
+  if (passed.status !== 200 || passed.body.headphone?.status !== 'passed')
+    throw new Error(`the headphone check did not pass: ${passed.status} ${passed.text}`)
+  return passed.body as PlayerState
 }

@@ -5,7 +5,7 @@ import { FINDINGS_TABLES } from '../../shared/schemas/findings'
 import { up as writeOlderRecords } from '../../migrations/20261202000100_served_records_data'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
 import { addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
-import { answerFor, invitedOf } from './playerFixtures'
+import { answerFor, invitedOf, passHeadphoneCheck } from './playerFixtures'
 
 // Findings are evidence: what a closed session's findings say must not move when the clips and
 // recipes it used are edited, archived or re-versioned, and its answers must be read through
@@ -39,6 +39,7 @@ async function answeredSession(format: 'rating' | 'pair' | 'triangle', close = t
   await developer.post(`/api/sessions/${id}/invitations`).send({ playerIds: players }).expect(200)
   for (const [lean, p] of (await invitedOf(t, id)).entries()) {
     await api().post('/api/player/consent').send({ token: p.token }).expect(200)
+    await passHeadphoneCheck(t.app, p.token)
     const { plan } = (await api().get('/api/player/plan').query({ token: p.token }).expect(200))
       .body
     const keys = plan.attributes.map((a: { key: string }) => a.key)
