@@ -1,6 +1,9 @@
 // The headphone check's rules, shared by the server (which deals and scores each attempt) and
 // the player's page (which plays the tones). No validation library here: the player's page
 // imports this module, and it must stay small.
+import { seededRandom } from './seededRandom'
+
+export { seededRandom }
 
 /** The pass mark, 5 of 6 (Woods et al. 2017). */
 export const HEADPHONE_PASS = { correct: 5, trials: 6 } as const
@@ -39,18 +42,6 @@ const ORDERS: [ToneKind, ToneKind, ToneKind][] = [
   ['quiet', 'reference', 'antiphase'],
   ['quiet', 'antiphase', 'reference'],
 ]
-
-/** A small seeded generator, so a check can be replayed exactly in tests. */
-export function seededRandom(seed: number): () => number {
-  let s = seed >>> 0
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0
-    let t = s
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 /**
  * Six trials that use every order of the three tones once, shuffled: the quiet tone is in each

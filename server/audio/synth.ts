@@ -1,4 +1,7 @@
 import { dbToGain } from './level.ts'
+import { seededRandom } from '../../shared/seededRandom'
+
+export { seededRandom }
 
 // Test signals for the measures' tests and the demo seed. Everything is generated, so fixtures
 // never need to be committed as binaries and every expected value can be computed.
@@ -6,18 +9,6 @@ import { dbToGain } from './level.ts'
 export interface ToneBase {
   seconds: number
   sampleRate?: number
-}
-
-/** Small seeded generator (mulberry32): noise in tests must be the same on every run. */
-export function seededRandom(seed: number): () => number {
-  let state = seed >>> 0
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0
-    let t = state
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
 }
 
 /** Gaussian white noise with the given RMS level. */
