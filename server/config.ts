@@ -11,6 +11,8 @@ export interface Config {
   mediaDir: string
   /** Largest single uploaded recording, in MB. */
   uploadMaxMb: number
+  /** Largest total of one upload request (a batch of recordings), in MB. */
+  uploadBatchMaxMb: number
   smtpUrl: string | null
   mailFrom: string
   jwtSecret: string
@@ -18,6 +20,17 @@ export interface Config {
   sessionMinutes: number
   bcryptCost: number
   loginRateLimit: { windowMs: number; max: number }
+  /** Failed sign-ins per account within the window before that account waits. */
+  accountThrottle: { windowMs: number; maxFailures: number }
+  /** Mail throttles: per recipient and per session. */
+  mailLimits: {
+    /** Least time between two reminders to one player. */
+    reminderGapMs: number
+    /** Most invitation and reminder mails one session may queue in an hour. */
+    sessionMailsPerHour: number
+    /** Most password-reset mails one address receives in an hour. */
+    resetsPerHour: number
+  }
   jsonLimit: string
   mail: { maxAttempts: number; retryBaseMs: number; pollMs: number }
 }
@@ -59,6 +72,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     databaseFile,
     mediaDir: env.MEDIA_DIR || 'media',
     uploadMaxMb: int(env.UPLOAD_MAX_MB, 200, 'UPLOAD_MAX_MB'),
+    uploadBatchMaxMb: int(env.UPLOAD_BATCH_MAX_MB, 1000, 'UPLOAD_BATCH_MAX_MB'),
     smtpUrl: env.SMTP_URL || null,
     mailFrom: env.MAIL_FROM || 'Ringdown <no-reply@ringdown.test>',
     jwtSecret: env.JWT_SECRET || localSecret(databaseFile),
@@ -67,6 +81,15 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     loginRateLimit: {
       windowMs: int(env.LOGIN_RATE_WINDOW_MS, 15 * 60_000, 'LOGIN_RATE_WINDOW_MS'),
       max: int(env.LOGIN_RATE_MAX, 20, 'LOGIN_RATE_MAX'),
+    },
+    accountThrottle: {
+      windowMs: int(env.ACCOUNT_THROTTLE_WINDOW_MS, 15 * 60_000, 'ACCOUNT_THROTTLE_WINDOW_MS'),
+      maxFailures: int(env.ACCOUNT_THROTTLE_MAX, 10, 'ACCOUNT_THROTTLE_MAX'),
+    },
+    mailLimits: {
+      reminderGapMs: int(env.REMINDER_GAP_HOURS, 12, 'REMINDER_GAP_HOURS') * 3_600_000,
+      sessionMailsPerHour: int(env.SESSION_MAILS_PER_HOUR, 400, 'SESSION_MAILS_PER_HOUR'),
+      resetsPerHour: int(env.RESETS_PER_HOUR, 3, 'RESETS_PER_HOUR'),
     },
     jsonLimit: env.JSON_LIMIT || '100kb',
     mail: {
@@ -86,12 +109,15 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
     databaseFile: ':memory:',
     mediaDir: 'media',
     uploadMaxMb: 200,
+    uploadBatchMaxMb: 1000,
     smtpUrl: null,
     mailFrom: 'Ringdown <no-reply@ringdown.test>',
     jwtSecret: 'test-secret-test-secret-test-secret',
     sessionMinutes: 30,
     bcryptCost: 4,
     loginRateLimit: { windowMs: 60_000, max: 1000 },
+    accountThrottle: { windowMs: 15 * 60_000, maxFailures: 10 },
+    mailLimits: { reminderGapMs: 12 * 3_600_000, sessionMailsPerHour: 400, resetsPerHour: 3 },
     jsonLimit: '100kb',
     mail: { maxAttempts: 3, retryBaseMs: 1000, pollMs: 0 },
     ...overrides,
