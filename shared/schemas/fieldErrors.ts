@@ -4,17 +4,27 @@ import type { z } from 'zod'
 
 /** Field path → messages, as the client forms show them beside each field. */
 export function zodFields(error: z.ZodError): Record<string, string[]> {
-  const fields: Record<string, string[]> = {}
+  // A Map, not a plain object: a field named "toString", "constructor" or "__proto__" would
+  // otherwise find the object's inherited members instead of an empty slot.
+  const fields = new Map<string, string[]>()
+  const add = (path: string, message: string) => {
+    const list = fields.get(path)
+    if (list) list.push(message)
+    else fields.set(path, [message])
+  }
   for (const issue of error.issues) {
     if (issue.code === 'unrecognized_keys') {
-      for (const key of issue.keys) (fields[key] ??= []).push('Unknown field')
+      for (const key of issue.keys) add(key, 'Unknown field')
       continue
     }
     // "instruments", not "instruments.0": people fix fields, not array slots.
-    const path = issue.path.filter((p) => typeof p !== 'number').join('.') || '_'
-    ;(fields[path] ??= []).push(issue.message)
+    add(issue.path.filter((p) => typeof p !== 'number').join('.') || '_', issue.message)
   }
-  return fields
+  // defineProperty keeps "__proto__" an ordinary own key that JSON.stringify writes out.
+  const out: Record<string, string[]> = {}
+  for (const [key, value] of fields)
+    Object.defineProperty(out, key, { value, enumerable: true, writable: true, configurable: true })
+  return out
 }
 
 export function zodMessages(error: z.ZodError): string[] {
