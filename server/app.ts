@@ -10,6 +10,7 @@ import type { AppContext, AppDeps } from './context'
 import { createOutbox } from './mail/outbox'
 import { authenticate } from './http/authenticate'
 import { errorHandler } from './http/errorHandler'
+import { redactUrl } from './http/redact'
 import { notFound } from './errors'
 import { buildRouter, type RouteDef } from './http/routeTable'
 import { authRoutes } from './auth/index.ts'
@@ -109,9 +110,13 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
     pinoHttp({
       logger,
       autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
-      // One short line per request; headers (cookies among them) stay out of the log.
+      // One short line per request; headers (cookies and tokens among them) stay out of the
+      // log, and so does anything in the URL that works as a credential.
       serializers: {
-        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url }),
+        req: (req: { method: string; url: string }) => ({
+          method: req.method,
+          url: redactUrl(req.url),
+        }),
         res: (res: { statusCode: number }) => ({ status: res.statusCode }),
       },
     }),

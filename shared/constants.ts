@@ -118,3 +118,9 @@ export type ArchivedFilter = (typeof ARCHIVED_FILTERS)[number]
 
 export const RECIPE_STATUSES = ['draft', 'prototype', 'retired'] as const
 export type RecipeStatus = (typeof RECIPE_STATUSES)[number]
+
+/**
+ * The header a player's page sends its invitation token in. A token in a URL's query would
+ * reach request logs, proxies and browser history; a header reaches none of them.
+ */
+export const INVITATION_HEADER = 'X-Invitation-Token'

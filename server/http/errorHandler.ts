@@ -2,6 +2,7 @@ import type { NextFunction, Request, Response } from 'express'
 import type { Logger } from 'pino'
 import { MulterError } from 'multer'
 import { AppError } from '../errors'
+import { redactUrl } from './redact'
 import type { ApiErrorBody } from '../../shared/types/api'
 
 function send(res: Response, status: number, body: ApiErrorBody) {
@@ -33,7 +34,7 @@ export function errorHandler(logger: Logger) {
     }
     if (e?.status && e.status >= 400 && e.status < 500)
       return send(res, e.status, { error: { code: 'bad_request', message: 'Bad request' } })
-    logger.error({ err, url: req.originalUrl }, 'unhandled error')
+    logger.error({ err, url: redactUrl(req.originalUrl) }, 'unhandled error')
     send(res, 500, { error: { code: 'internal', message: 'Something went wrong on our side' } })
   }
 }

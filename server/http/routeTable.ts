@@ -13,7 +13,7 @@ import { withInput } from './validate'
 export type Method = 'get' | 'post' | 'patch' | 'put' | 'delete'
 
 /** The parts of a request a route may declare a schema for, in the order they are checked. */
-export const INPUT_PARTS = ['params', 'query', 'body'] as const
+export const INPUT_PARTS = ['params', 'headers', 'query', 'body'] as const
 export type InputPart = (typeof INPUT_PARTS)[number]
 
 /** A part's schema, or nothing when the route does not read that part. */
@@ -25,10 +25,12 @@ export interface RouteInput<
   P extends PartSchema = PartSchema,
   Q extends PartSchema = PartSchema,
   B extends PartSchema = PartSchema,
+  H extends PartSchema = PartSchema,
 > {
   params: Parsed<P>
   query: Parsed<Q>
   body: Parsed<B>
+  headers: Parsed<H>
 }
 
 /**
@@ -37,31 +39,42 @@ export interface RouteInput<
  */
 export type OnInvalid = (failure: AppError, req: Request, res: Response) => Error
 
-export interface RouteSpec<P extends PartSchema, Q extends PartSchema, B extends PartSchema> {
+export interface RouteSpec<
+  P extends PartSchema,
+  Q extends PartSchema,
+  B extends PartSchema,
+  H extends PartSchema = undefined,
+> {
   method: Method
   path: string
   roles: readonly Role[] | 'public'
   /** Extra middleware (uploads, rate limits) run after the role check and before validation. */
   before?: RequestHandler[]
   params?: P
+  /**
+   * Request headers (lower-case names) a route reads as input: credentials that must stay out
+   * of URLs, and so out of every log and browser history, travel here.
+   */
+  headers?: H
   query?: Q
   body?: B
   onInvalid?: Partial<Record<InputPart, OnInvalid>>
-  handler: (req: Request, res: Response, input: RouteInput<P, Q, B>) => unknown
+  handler: (req: Request, res: Response, input: RouteInput<P, Q, B, H>) => unknown
 }
 
 /**
  * One line of a route table. `roles` is required: a route is either open to everyone
  * ('public') or lists who may call it. The role test walks these tables and their schemas.
  */
-export type RouteDef = RouteSpec<PartSchema, PartSchema, PartSchema>
+export type RouteDef = RouteSpec<PartSchema, PartSchema, PartSchema, PartSchema>
 
 /** A route table entry whose handler gets its declared input parsed and typed. */
 export function route<
   P extends PartSchema = undefined,
   Q extends PartSchema = undefined,
   B extends PartSchema = undefined,
->(spec: RouteSpec<P, Q, B>): RouteDef {
+  H extends PartSchema = undefined,
+>(spec: RouteSpec<P, Q, B, H>): RouteDef {
   // The validate step hands the handler exactly what these schemas produced, so the
   // narrower handler type holds at run time.
   return spec as unknown as RouteDef

@@ -26,7 +26,7 @@ function reader(schema: z.ZodType, onInvalid: OnInvalid | undefined): Reader {
 }
 
 /**
- * The validate step: parses the declared params, query and body (in that order, the first
+ * The validate step: parses the declared params, headers, query and body (in that order, the first
  * failure answers) and calls the handler with them. The readers are built once per route and
  * the call stays synchronous, so a request pays for its parse calls and one small object only;
  * a part with no schema is not read at all (Express parses `req.query` on every access).
@@ -34,11 +34,13 @@ function reader(schema: z.ZodType, onInvalid: OnInvalid | undefined): Reader {
 export function withInput(def: RouteDef): RequestHandler {
   const { handler, onInvalid = {} } = def
   const params = def.params && reader(def.params, onInvalid.params)
+  const headers = def.headers && reader(def.headers, onInvalid.headers)
   const query = def.query && reader(def.query, onInvalid.query)
   const body = def.body && reader(def.body, onInvalid.body)
   return (req, res) =>
     handler(req, res, {
       params: params?.(req.params, req, res),
+      headers: headers?.(req.headers, req, res),
       query: query?.(req.query, req, res),
       body: body?.(req.body, req, res),
     })

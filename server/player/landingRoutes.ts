@@ -2,7 +2,7 @@ import type { AppContext } from '../context'
 import { route, type RouteDef } from '../http/routeTable'
 import { playerLanding } from './landing'
 import { noToken } from './schemas'
-import { playerLinkQuery } from '../../shared/schemas/sessions'
+import { playerLinkHeaders } from '../../shared/schemas/sessions'
 
 /** Routes a player reaches with an invitation link and no sign-in. */
 export function playerRoutes(ctx: AppContext): RouteDef[] {
@@ -11,11 +11,11 @@ export function playerRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/invitation',
       roles: 'public',
-      query: playerLinkQuery,
-      onInvalid: { query: noToken },
-      handler: async (_req, res, { query }) => {
+      headers: playerLinkHeaders,
+      onInvalid: { headers: noToken },
+      handler: async (_req, res, { headers }) => {
         res.setHeader('Cache-Control', 'no-store')
-        res.json(await playerLanding(ctx, query.token))
+        res.json(await playerLanding(ctx, headers.token))
       },
     }),
   ]

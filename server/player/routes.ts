@@ -8,7 +8,7 @@ import { playerPlanView } from './plan'
 import { playerAudioBytes } from './audio'
 import { saveAnswer } from './saveAnswer'
 import { audioRefParam, noToken, trialParam } from './schemas'
-import { playerLinkQuery } from '../../shared/schemas/sessions'
+import { playerLinkHeaders } from '../../shared/schemas/sessions'
 import { headphoneCheckBody, saveAnswerBody, tokenBody } from '../../shared/schemas/rating'
 
 /** Player answers are personal and change as they go: no shared or stored copies. */
@@ -24,9 +24,9 @@ export function playerFlowRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/state',
       roles: 'public',
-      query: playerLinkQuery,
-      onInvalid: { query: noToken },
-      handler: async (_req, res, { query }) => json(res, await playerState(ctx, query.token)),
+      headers: playerLinkHeaders,
+      onInvalid: { headers: noToken },
+      handler: async (_req, res, { headers }) => json(res, await playerState(ctx, headers.token)),
     }),
     route({
       method: 'post',
@@ -61,10 +61,10 @@ export function playerFlowRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/plan',
       roles: 'public',
-      query: playerLinkQuery,
-      onInvalid: { query: noToken },
-      handler: async (_req, res, { query }) =>
-        json(res, { plan: await playerPlanView(ctx, query.token) }),
+      headers: playerLinkHeaders,
+      onInvalid: { headers: noToken },
+      handler: async (_req, res, { headers }) =>
+        json(res, { plan: await playerPlanView(ctx, headers.token) }),
     }),
     route({
       method: 'get',

@@ -35,6 +35,8 @@ export interface RequestOptions {
   body?: unknown
   /** A 401 here is an expected answer (sign-in, who-am-I), not an expired session. */
   quiet401?: boolean
+  /** Extra request headers, for credentials that must not ride in the URL. */
+  headers?: Record<string, string>
 }
 
 export async function request<T>(
@@ -48,7 +50,10 @@ export async function request<T>(
     res = await fetch(withQuery(`/api${path}`, options.query), {
       method,
       credentials: 'same-origin',
-      headers: options.body && !isForm ? { 'Content-Type': 'application/json' } : undefined,
+      headers: {
+        ...(options.body && !isForm ? { 'Content-Type': 'application/json' } : {}),
+        ...options.headers,
+      },
       body: isForm
         ? (options.body as FormData)
         : options.body !== undefined

@@ -114,7 +114,8 @@ describe('a player on a phone', () => {
     await page.getByRole('button', { name: 'The level is comfortable — continue' }).click()
 
     const plan = (await page.evaluate(
-      (t) => fetch(`/api/player/plan?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/plan`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as { plan: PlayerPlanView }
     const keys = plan.plan.attributes.map((a) => a.key)
@@ -184,7 +185,8 @@ describe('a player on a phone', () => {
 
     // What the server stored is exactly what was moved, one answer per trial.
     const state = (await page.evaluate(
-      (t) => fetch(`/api/player/state?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/state`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as PlayerState
     const stored = new Map(state.answers.map((a) => [a.trialIndex, a.answer]))
@@ -222,7 +224,8 @@ describe('a pair-preference player on a desktop', () => {
     await page.goto(`${product.base}/p/${token}`)
     await deckReady(page)
     const plan = (await page.evaluate(
-      (t) => fetch(`/api/player/plan?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/plan`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as { plan: PlayerPlanView }
     const first = plan.plan.trials[0]
@@ -252,7 +255,8 @@ describe('a pair-preference player on a desktop', () => {
       .toContain('Saved')
     const more = Object.fromEntries(plan.plan.attributes.map((x) => [x.key, b]))
     const state = (await page.evaluate(
-      (t) => fetch(`/api/player/state?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/state`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as PlayerState
     expect(state.answers).toEqual([
@@ -311,11 +315,13 @@ describe('a play-test label', () => {
     await page.getByText(`is rated`).waitFor()
 
     const state = (await page.evaluate(
-      (t) => fetch(`/api/player/state?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/state`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as PlayerState
     const plan = (await page.evaluate(
-      (t) => fetch(`/api/player/plan?token=${t}`).then((r) => r.json()),
+      (t) =>
+        fetch(`/api/player/plan`, { headers: { 'X-Invitation-Token': t } }).then((r) => r.json()),
       token,
     )) as { plan: PlayerPlanView }
     const index = plan.plan.trials.find((t) => t.setCode === set.code)!.index

@@ -28,7 +28,7 @@ afterAll(() => t.close())
 
 const api = () => request(t.app)
 const start = (token: string) => api().post('/api/player/headphone/start').send({ token })
-const state = (token: string) => api().get('/api/player/state').query({ token })
+const state = (token: string) => api().get('/api/player/state').set('X-Invitation-Token', token)
 
 /** An open session of two recipes, one matched set and no repeats: two trials per player. */
 async function study(format: 'rating' | 'playtest', players: number) {
@@ -156,7 +156,7 @@ describe('the headphone check, dealt and scored by the server', () => {
       .post('/api/player/headphone')
       .send({ token: p.token, attempt: 3, responses: [0, 0, 0, 0, 0, 0] })
     const level = await api().post('/api/player/level').send({ token: p.token })
-    const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+    const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
     const answer = await api()
       .put(`/api/player/answers/${plan.trials[0].index}`)
       .send({ token: p.token, answer: { kind: 'rating', values: { brightness: 50 } } })
@@ -260,7 +260,7 @@ describe('the trials wait for the headphone check', () => {
 
   it('refuses the level and every answer before the check, yet serves the plan', async () => {
     const p = invited[0]
-    const plan = await api().get('/api/player/plan').query({ token: p.token })
+    const plan = await api().get('/api/player/plan').set('X-Invitation-Token', p.token)
     const early = [await level(p.token), await answer(p.token, 0), await answer(p.token, 99)]
     // A dealt attempt not yet answered is not a finished check either.
     await start(p.token)
@@ -321,7 +321,7 @@ describe('the trials wait for the headphone check', () => {
     const {
       invited: [p],
     } = await study('playtest', 1)
-    const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+    const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
     const set = await level(p.token)
     const saved = await api()
       .put(`/api/player/answers/${plan.trials[0].index}`)
@@ -346,7 +346,7 @@ describe('answers stored before the check was required', () => {
     older = s.invited[1]
     for (const [i, p] of s.invited.entries()) {
       await takeHeadphoneCheck(t, p.token)
-      const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
       const values = Object.fromEntries(KEYS.map((k) => [k, VALUES[i]]))
       for (const trial of plan.trials)
         await api()
@@ -432,7 +432,7 @@ describe('findings and a failed headphone check', () => {
         clock.advance(30_000)
         await takeHeadphoneCheck(t, p.token, 4)
       }
-      const plan = (await api().get('/api/player/plan').query({ token: p.token })).body.plan
+      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
       const values = Object.fromEntries(KEYS.map((k) => [k, VALUES[i]]))
       for (const trial of plan.trials)
         await api()

@@ -1,6 +1,6 @@
 import type { Knex } from 'knex'
 import request from 'supertest'
-import pino from 'pino'
+import pino, { type Logger } from 'pino'
 import { createApp, type RingdownApp } from '../../server/app'
 import { testConfig, type Config } from '../../server/config'
 import type { Clock } from '../../server/clock'
@@ -55,6 +55,8 @@ export async function buildApp(
     mailbox?: Mailbox
     /** Serve the built client (dist/) as the product does, for tests of what pages carry. */
     serveClient?: boolean
+    /** A logger to read back, for tests of what the log holds; silent otherwise. */
+    logger?: Logger
   } = {},
 ): Promise<TestApp> {
   const knex = createKnex(':memory:')
@@ -67,7 +69,7 @@ export async function buildApp(
     mailer: options.mailer ?? mailer,
     clock: options.clock,
     // Production-mode apps would log every request; tests read responses, not logs.
-    logger: pino({ level: 'silent' }),
+    logger: options.logger ?? pino({ level: 'silent' }),
     mailbox: options.mailbox,
     serveClient: options.serveClient,
   })

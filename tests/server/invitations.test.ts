@@ -145,7 +145,7 @@ describe('the player link', () => {
     return { id, players, tokens, invitations }
   }
 
-  const land = (token: string) => request(t.app).get('/api/player/invitation').query({ token })
+  const land = (token: string) => request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
 
   it('opens the landing page without sign-in, marks it opened once, and shows nothing else', async () => {
     const { id, tokens } = await invited()
@@ -263,9 +263,9 @@ describe('a deadline moved while the session runs', () => {
 
     await developer.patch(`/api/sessions/${id}`).send({ deadline: isoDay(clock.now(), 5) })
     clock.advance(3 * DAY)
-    const extended = await request(t.app).get('/api/player/invitation').query({ token })
+    const extended = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
     clock.advance(3 * DAY)
-    const over = await request(t.app).get('/api/player/invitation').query({ token })
+    const over = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
 
     expect(extended.status).toBe(200)
     expect(over.status).toBe(410)
@@ -404,7 +404,7 @@ describe('invitation mail through a real SMTP server', () => {
       (m: { to: string }) => m.to === email,
     )
     const token = playerToken(mail)
-    const landing = await request(t.app).get('/api/player/invitation').query({ token })
+    const landing = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
 
     expect(mail.subject).toBe('Invitation: Evening listening')
     expect(mail.text).toMatch(/Please finish by \d{4}-\d{2}-\d{2}/)

@@ -62,9 +62,9 @@ const binary = (res: request.Response, done: (err: Error | null, body: Buffer) =
   res.on('data', (c: Buffer) => chunks.push(c))
   res.on('end', () => done(null, Buffer.concat(chunks)))
 }
-const state = (token: string) => api().get('/api/player/state').query({ token })
+const state = (token: string) => api().get('/api/player/state').set('X-Invitation-Token', token)
 const plan = async (token: string) =>
-  (await api().get('/api/player/plan').query({ token })).body.plan
+  (await api().get('/api/player/plan').set('X-Invitation-Token', token)).body.plan
 const put = (token: string, index: number, answer: unknown) =>
   api().put(`/api/player/answers/${index}`).send({ token, answer })
 const answerRows = (invitationId: number) =>
@@ -84,7 +84,7 @@ describe('the player path', () => {
     const [p] = invited
 
     const first = await state(p.token)
-    const early = await api().get('/api/player/plan').query({ token: p.token })
+    const early = await api().get('/api/player/plan').set('X-Invitation-Token', p.token)
     const consent = await api().post('/api/player/consent').send({ token: p.token })
     const consentedAt = clock.now().toISOString()
     const failed = await takeHeadphoneCheck(t, p.token, 3)

@@ -71,10 +71,10 @@ describe('the words that reach players', () => {
     const mails = t.mailer.sent.filter((m) => m.to === email)
     const [{ token }] = await invitedOf(t, id)
     const api = () => request(t.app)
-    const landing = await api().get('/api/player/invitation').query({ token })
+    const landing = await api().get('/api/player/invitation').set('X-Invitation-Token', token)
     await api().post('/api/player/consent').send({ token })
-    const state = await api().get('/api/player/state').query({ token })
-    const plan = await api().get('/api/player/plan').query({ token })
+    const state = await api().get('/api/player/state').set('X-Invitation-Token', token)
+    const plan = await api().get('/api/player/plan').set('X-Invitation-Token', token)
     const preview = await developer.get(`/api/sessions/${id}/preview`)
     const staff = await developer.get(`/api/sessions/${id}`)
 

@@ -4,9 +4,12 @@ import type { InvitationStatus } from './invitations'
 
 // What a player's invitation link opens, before any trial.
 
-export const playerLinkQuery = z.object({
-  token: z.string().trim().min(1, 'The link has no token').max(4000),
-})
+/** The invitation token from INVITATION_HEADER (Node gives header names in lower case). */
+export const playerLinkHeaders = z
+  .object({
+    'x-invitation-token': z.string().trim().min(1, 'The link has no token').max(4000),
+  })
+  .transform((h) => ({ token: h['x-invitation-token'] }))
 
 /** What an invitation link opens, before the first trial. */
 export interface PlayerLanding {

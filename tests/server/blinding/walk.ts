@@ -3,6 +3,7 @@ import type { z } from 'zod'
 import type { RingdownApp } from '../../../server/app'
 import type { MountedTable } from '../../../server/app'
 import type { RouteDef } from '../../../server/http/routeTable'
+import { INVITATION_HEADER } from '../../../shared/constants'
 import { answerFor } from '../playerFixtures'
 
 // Walks everything a player can reach with one invitation link. The routes come from the app's
@@ -129,7 +130,7 @@ export async function walk(
     const what = `${r.method.toUpperCase()} ${r.path}`
     const call = (path: string, body: Record<string, unknown> = {}) => {
       let req = request(app)[r.method](path)
-      if (hasToken(r.def.query)) req = req.query({ token })
+      if (r.def.headers) req = req.set(INVITATION_HEADER, token)
       if (r.method === 'get' || r.method === 'delete') return req
       return req.send(hasToken(r.def.body) ? { token, ...body } : body)
     }
@@ -184,7 +185,7 @@ export async function walk(
   }
   keep(
     'GET /api/player/state at the end',
-    await request(app).get('/api/player/state').query({ token }),
+    await request(app).get('/api/player/state').set('X-Invitation-Token', token),
   )
   return { seen, audio, plan, routes }
 }
