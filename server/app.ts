@@ -11,6 +11,7 @@ import { createOutbox } from './mail/outbox'
 import { authenticate } from './http/authenticate'
 import { errorHandler } from './http/errorHandler'
 import { redactUrl } from './http/redact'
+import { sessionGuard } from './http/sessionAccess'
 import { notFound } from './errors'
 import { buildRouter, type RouteDef } from './http/routeTable'
 import { authRoutes } from './auth/index.ts'
@@ -125,7 +126,8 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
   app.use('/api', authenticate(ctx))
 
   const tables = routeTables(ctx)
-  for (const t of tables) app.use(t.prefix, buildRouter(t.routes))
+  const guard = sessionGuard(ctx.knex)
+  for (const t of tables) app.use(t.prefix, buildRouter(t.routes, guard))
   app.use('/api', (req, _res, next) =>
     next(notFound(`API route ${req.method} ${req.originalUrl.split('?')[0]}`)),
   )

@@ -1,6 +1,5 @@
 import type { Knex } from 'knex'
-import { conflict, forbidden } from '../errors'
-import type { Role } from '../../shared/constants'
+import { conflict } from '../errors'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
 import type { RecipeRef } from '../../shared/schemas/findings'
 import {
@@ -13,19 +12,6 @@ import { sessionServedTrials } from '../sessions/servedRecord'
 import { CORRELATED_MEASURES, type ClipMeasureRow } from './objective'
 import { designOf, loadSession, type SessionRow } from '../sessions/rows'
 import { HEADPHONE_EXCLUSION_REASON, headphoneScreening } from './headphoneExclusions'
-
-/** Who is asking: services take this rather than the request. */
-export interface Viewer {
-  userId: number | null
-  role: Role
-}
-
-/** Developers read the findings of the sessions they made; analysts and admins read all. */
-export function assertMayRead(viewer: Viewer, session: SessionRow): void {
-  if (viewer.role === 'admin' || viewer.role === 'analyst') return
-  if (viewer.role === 'developer' && session.created_by === viewer.userId) return
-  throw forbidden('Only the developer who made this session, analysts and admins see its findings')
-}
 
 export interface SessionPlayer {
   playerId: number

@@ -1,10 +1,9 @@
-import type { Request, Response } from 'express'
+import type { Response } from 'express'
 import type { AppContext } from '../context'
 import { EXCLUDERS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
-import { unauthenticated } from '../errors'
-import { computeSessionFindings, getFindings, readableSession, type Viewer } from './service'
+import { computeSessionFindings, getFindings } from './service'
 import { excludePlayer, includePlayer } from './exclusions'
 import { loadFindingsData } from './data'
 import { answersCsv, exportFileName, tableCsv } from './exportCsv'
@@ -17,12 +16,7 @@ import {
   playerCodeParam,
 } from '../../shared/schemas/findings'
 
-// Developers pass the role check here; the service then admits only their own sessions.
-
-function viewerOf(req: Request): Viewer {
-  if (!req.user) throw unauthenticated()
-  return { userId: req.user.id, role: req.user.role }
-}
+// Developers pass the role check here; the session rule then admits only their own sessions.
 
 function sendCsv(res: Response, fileName: string, body: string) {
   res.setHeader('Content-Type', 'text/csv; charset=utf-8')
@@ -32,47 +26,50 @@ function sendCsv(res: Response, fileName: string, body: string) {
 }
 
 export function findingsRoutes(ctx: AppContext): RouteDef[] {
-  const recomputed = (id: number, req: Request) => getFindings(ctx.knex, id, viewerOf(req))
+  const recomputed = (id: number) => getFindings(ctx.knex, id)
   return [
     route({
       method: 'get',
       path: '/:id',
       roles: STAFF,
+      session: { access: 'results' },
       params: idParam,
       query: findingsQuery,
-      handler: async (req, res, { params, query }) => {
-        res.json(await getFindings(ctx.knex, params.id, viewerOf(req), query))
+      handler: async (_req, res, { params, query }) => {
+        res.json(await getFindings(ctx.knex, params.id, query))
       },
     }),
     route({
       method: 'post',
       path: '/:id/exclusions',
       roles: EXCLUDERS,
+      session: { access: 'results' },
       params: idParam,
       body: excludePlayerBody,
       handler: async (req, res, { params, body }) => {
         await excludePlayer(ctx, params.id, body, actorOf(req))
-        res.json(await recomputed(params.id, req))
+        res.json(await recomputed(params.id))
       },
     }),
     route({
       method: 'delete',
       path: '/:id/exclusions/:playerCode',
       roles: EXCLUDERS,
+      session: { access: 'results' },
       params: playerCodeParam,
       body: includePlayerBody,
       handler: async (req, res, { params: { id, playerCode }, body }) => {
         await includePlayer(ctx, id, playerCode, body, actorOf(req))
-        res.json(await recomputed(id, req))
+        res.json(await recomputed(id))
       },
     }),
     route({
       method: 'get',
       path: '/:id/export/answers.csv',
       roles: STAFF,
+      session: { access: 'results' },
       params: idParam,
-      handler: async (req, res, { params: { id } }) => {
-        await readableSession(ctx.knex, id, viewerOf(req))
+      handler: async (_req, res, { params: { id } }) => {
         sendCsv(
           res,
           exportFileName(id, 'answers'),
@@ -84,10 +81,10 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/:id/export/:table.csv',
       roles: STAFF,
+      session: { access: 'results' },
       params: exportTableParam,
       query: findingsQuery,
-      handler: async (req, res, { params: { id, table }, query }) => {
-        await readableSession(ctx.knex, id, viewerOf(req))
+      handler: async (_req, res, { params: { id, table }, query }) => {
         const { findings } = await computeSessionFindings(ctx.knex, id, query)
         sendCsv(res, exportFileName(id, table), tableCsv(findings, table))
       },

@@ -4,6 +4,7 @@ import { idParam } from '../../shared/schemas/common'
 import type { Actor } from '../audit/service'
 import { actorOf } from './authenticate'
 import { route, type RouteDef } from './routeTable'
+import type { SessionRule } from './sessionAccess'
 
 // The shapes most staff routes take, so a route table reads as a list of what each route does:
 // list, read, create, update, and actions on the item named by `:id`. Each answers its result
@@ -73,12 +74,14 @@ export function updateItem<B extends z.ZodType>(def: {
   roles: Roles
   key: string
   body: B
+  session?: SessionRule
   update: (id: number, body: z.output<B>, actor: Actor) => Promise<unknown>
 }): RouteDef {
   return route({
     method: 'patch',
     path: def.path,
     roles: def.roles,
+    session: def.session,
     params: idParam,
     body: def.body as z.ZodType,
     handler: async (req, res, { params, body }) => {
@@ -96,12 +99,14 @@ export function itemAction(def: {
   path: string
   roles: Roles
   key?: string
+  session?: SessionRule
   act: (id: number, actor: Actor) => Promise<unknown>
 }): RouteDef {
   return route({
     method: def.method,
     path: def.path,
     roles: def.roles,
+    session: def.session,
     params: idParam,
     handler: async (req, res, { params }) => {
       const result = await def.act(params.id, actorOf(req))

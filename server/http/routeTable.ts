@@ -9,6 +9,7 @@ import type { z } from 'zod'
 import type { Role } from '../../shared/constants'
 import { forbidden, unauthenticated, type AppError } from '../errors'
 import { withInput } from './validate'
+import type { SessionRule } from './sessionAccess'
 
 export type Method = 'get' | 'post' | 'patch' | 'put' | 'delete'
 
@@ -48,6 +49,11 @@ export interface RouteSpec<
   method: Method
   path: string
   roles: readonly Role[] | 'public'
+  /**
+   * For routes on one session (`:id` names it, or one of its invitations): what the caller may
+   * do with it, checked by the one ownership rule in sessionAccess.ts right after the role.
+   */
+  session?: SessionRule
   /** Extra middleware (uploads, rate limits) run after the role check and before validation. */
   before?: RequestHandler[]
   params?: P
@@ -89,14 +95,30 @@ export function requireRole(roles: RouteDef['roles']): RequestHandler {
   }
 }
 
-/** Role check, then `before`, then the validate step and the handler in one synchronous call. */
-export function buildRouter(defs: RouteDef[]): Router {
+/**
+ * Role check, then the session rule, then `before`, then the validate step and the handler in
+ * one synchronous call.
+ */
+export function buildRouter(
+  defs: RouteDef[],
+  sessionGuard?: (rule: SessionRule) => RequestHandler,
+): Router {
   const router = Router()
   for (const def of defs) {
+    const name = `${def.method.toUpperCase()} ${def.path}`
     if (def.roles !== 'public' && (!Array.isArray(def.roles) || def.roles.length === 0)) {
-      throw new Error(`${def.method.toUpperCase()} ${def.path} declares no roles`)
+      throw new Error(`${name} declares no roles`)
     }
-    router[def.method](def.path, requireRole(def.roles), ...(def.before ?? []), withInput(def))
+    if (def.session && (!sessionGuard || def.roles === 'public' || !def.path.includes(':id')))
+      throw new Error(`${name}: a session rule needs staff roles, an :id and the guard`)
+    const guard = def.session ? [sessionGuard!(def.session)] : []
+    router[def.method](
+      def.path,
+      requireRole(def.roles),
+      ...guard,
+      ...(def.before ?? []),
+      withInput(def),
+    )
   }
   return router
 }

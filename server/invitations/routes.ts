@@ -11,6 +11,7 @@ export function invitationRoutes(ctx: AppContext): RouteDef[] {
       path,
       roles: EDITORS,
       key: 'invitation',
+      session: { access: 'manage', of: 'invitation' },
       act: (id, actor) => run(ctx, id, actor),
     })
   return [

@@ -49,7 +49,8 @@ export async function createSession(
   ctx: AppContext,
   body: SessionDesignParsed,
   actor: Actor,
-  extra: { parentSessionId?: number } = {},
+  /** A later time point belongs to the study's owner, whoever adds it (sessionAccess.ts). */
+  extra: { parentSessionId?: number; ownerId?: number | null } = {},
 ): Promise<SessionDetail> {
   const now = ctx.clock.now()
   const seed = newSeed()
@@ -72,7 +73,7 @@ export async function createSession(
       reminder_days_before: body.reminderDaysBefore,
       parent_session_id: extra.parentSessionId ?? null,
       time_point_label: body.timePointLabel,
-      created_by: actor.userId,
+      created_by: extra.ownerId !== undefined ? extra.ownerId : actor.userId,
       created_at: now.toISOString(),
       updated_at: now.toISOString(),
     })

@@ -42,6 +42,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'get',
       path: '/:id',
+      session: { access: 'results' },
       roles: STAFF,
       params: idParam,
       handler: async (_req, res, { params }) => {
@@ -50,6 +51,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     }),
     updateItem({
       path: '/:id',
+      session: { access: 'manage' },
       roles: EDITORS,
       key: 'session',
       body: updateSessionBody,
@@ -58,6 +60,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'post',
       path: '/:id/open',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       body: openSessionBody,
@@ -68,6 +71,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     itemAction({
       method: 'post',
       path: '/:id/close',
+      session: { access: 'manage' },
       roles: EDITORS,
       key: 'session',
       act: (id, actor) => closeSession(ctx, id, actor),
@@ -75,6 +79,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'get',
       path: '/:id/preview',
+      session: { access: 'results' },
       roles: STAFF,
       params: idParam,
       query: previewQuery,
@@ -93,6 +98,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'post',
       path: '/:id/time-points',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       body: timePointBody,
@@ -103,6 +109,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'get',
       path: '/:id/invitations',
+      session: { access: 'results' },
       roles: STAFF,
       params: idParam,
       handler: async (req, res, { params }) => {
@@ -114,6 +121,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'post',
       path: '/:id/invitations',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       body: inviteBody,
@@ -124,6 +132,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'post',
       path: '/:id/remind',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       handler: async (req, res, { params }) => {
@@ -133,6 +142,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
     route({
       method: 'get',
       path: '/:id/labels',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       handler: async (_req, res, { params }) => {
@@ -143,6 +153,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       // The key to the coded envelopes: a route of its own, so it never rides on the labels.
       path: '/:id/packing-list',
+      session: { access: 'manage' },
       roles: EDITORS,
       params: idParam,
       handler: async (_req, res, { params }) => {

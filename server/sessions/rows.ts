@@ -153,6 +153,7 @@ export const toSummary = (r: SummaryRow): SessionSummary => ({
   timePointLabel: r.time_point_label,
   parentSessionId: r.parent_session_id,
   createdBy: r.creator,
+  createdById: r.created_by,
   createdAt: r.created_at,
 })
 

@@ -51,7 +51,7 @@ export async function addTimePoint(
       timePointLabel: body.label,
     },
     actor,
-    { parentSessionId: root.id },
+    { parentSessionId: root.id, ownerId: root.created_by },
   )
   if (!body.inviteSamePlayers) return created
   // A later time point plays what the first did: the single-take choice made then carries over.

@@ -23,6 +23,7 @@ function detail(over: Partial<SessionDetail> = {}): SessionDetail {
     timePointLabel: null,
     parentSessionId: null,
     createdBy: 'Dev',
+    createdById: 1,
     createdAt: '2026-10-01T10:00:00.000Z',
     purpose: 'Which compound weight do players prefer?',
     recipeIds: [1, 2],

@@ -25,6 +25,7 @@ const session = (over: Partial<SessionDetail> = {}): SessionDetail => ({
   timePointLabel: null,
   parentSessionId: null,
   createdBy: 'Dev',
+  createdById: 1,
   createdAt: '2026-11-01T10:00:00.000Z',
   purpose: '',
   recipeIds: [1, 2],

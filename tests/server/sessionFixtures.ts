@@ -1,3 +1,4 @@
+import { opaqueName } from '../../server/clips/storage'
 import type { Knex } from 'knex'
 import type { Agent } from './helpers'
 import type { PlannedTrial } from '../../server/design/index.ts'
@@ -41,8 +42,9 @@ export async function addClip(
     instrument_code: set.instrument ?? 'VN-T1',
     kind: 'bowed',
     original_name: `take-${file}.wav`,
-    original_file: `o-${file}.wav`,
-    rendition_file: `r-${file}.wav`,
+    // Names as intake gives them: anything else is a stored row the media routes refuse.
+    original_file: opaqueName('wav'),
+    rendition_file: opaqueName('wav'),
     rendition_gain_db: 0,
     container: 'wav',
     duration_s: 3,

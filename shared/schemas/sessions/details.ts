@@ -15,6 +15,8 @@ export interface SessionSummary {
   timePointLabel: string | null
   parentSessionId: number | null
   createdBy: string | null
+  /** Who owns the session under the rule in shared/sessionAccess.ts. */
+  createdById: number | null
   createdAt: string
 }
 
