@@ -12,6 +12,7 @@ import { authenticate } from './http/authenticate'
 import { errorHandler } from './http/errorHandler'
 import { redactUrl } from './http/redact'
 import { sessionGuard } from './http/sessionAccess'
+import { sameOriginWrites } from './http/sameOrigin'
 import { notFound } from './errors'
 import { buildRouter, type RouteDef } from './http/routeTable'
 import { authRoutes } from './auth/index.ts'
@@ -122,6 +123,13 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
       },
     }),
   )
+  app.use('/api', sameOriginWrites(deps.config.publicUrl))
+  // API answers carry people's names, addresses and results: no shared or stored copies unless
+  // a route says otherwise (audio sets its own).
+  app.use('/api', (_req, res, next) => {
+    res.setHeader('Cache-Control', 'no-store')
+    next()
+  })
   app.use('/api', express.json({ limit: deps.config.jsonLimit }), cookieParser())
   app.use('/api', authenticate(ctx))
 

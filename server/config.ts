@@ -50,6 +50,26 @@ function localSecret(databaseFile: string): string {
   return secret
 }
 
+/** Words people put in a secret when they mean to change it later. */
+const PLACEHOLDERS =
+  /secret|password|changeme|change-me|example|default|ringdown|jwt|token|test|demo/i
+
+/**
+ * Why a signing secret is too weak to sign session cookies with, or null. HS256 wants a key at
+ * least as long as its 256-bit output (RFC 7518 §3.2); 32 characters of `openssl rand -base64`
+ * are about 192 bits, so we ask for 32 characters from at least 12 different ones, and refuse
+ * the placeholders a guesser tries first.
+ */
+export function secretProblem(secret: string): string | null {
+  if (secret.length < 32)
+    return 'must be at least 32 characters: make one with `openssl rand -base64 48`'
+  if (new Set(secret).size < 12)
+    return 'repeats too few characters to be random: make one with `openssl rand -base64 48`'
+  if (PLACEHOLDERS.test(secret) && new Set(secret.replace(new RegExp(PLACEHOLDERS, 'gi'), '')).size < 12)
+    return 'looks like a placeholder: make one with `openssl rand -base64 48`'
+  return null
+}
+
 function int(value: string | undefined, fallback: number, name: string): number {
   if (value === undefined || value === '') return fallback
   const n = Number(value)
@@ -62,8 +82,10 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development'
   const port = int(env.PORT, 3000, 'PORT')
   const databaseFile = env.DATABASE_FILE || DEFAULT_DB
-  if (nodeEnv === 'production' && !env.JWT_SECRET) {
-    throw new Error('JWT_SECRET is required when NODE_ENV=production')
+  if (nodeEnv === 'production') {
+    if (!env.JWT_SECRET) throw new Error('JWT_SECRET is required when NODE_ENV=production')
+    const problem = secretProblem(env.JWT_SECRET)
+    if (problem) throw new Error(`JWT_SECRET ${problem}`)
   }
   return {
     env: nodeEnv,

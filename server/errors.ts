@@ -9,6 +9,7 @@ const STATUS: Record<ErrorCode, number> = {
   conflict: 409,
   rate_limited: 429,
   payload_too_large: 413,
+  unsupported_media_type: 415,
   invalid_token: 400,
   internal: 500,
 }

@@ -79,6 +79,7 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/',
       roles: EDITORS,
+      accepts: 'multipart',
       // The multipart fields are the body, so they are checked after the upload and its file.
       before: [single, requireFile('file', 'Attach the recording in the field "file"')],
       body: clipUploadBody,
@@ -96,6 +97,7 @@ export function clipRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/batch',
       roles: EDITORS,
+      accepts: 'multipart',
       before: [batch],
       handler: async (req, res) => {
         try {

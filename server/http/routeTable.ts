@@ -7,7 +7,7 @@ import {
 } from 'express'
 import type { z } from 'zod'
 import type { Role } from '../../shared/constants'
-import { forbidden, unauthenticated, type AppError } from '../errors'
+import { AppError, forbidden, unauthenticated } from '../errors'
 import { withInput } from './validate'
 import type { SessionRule } from './sessionAccess'
 
@@ -54,6 +54,11 @@ export interface RouteSpec<
    * do with it, checked by the one ownership rule in sessionAccess.ts right after the role.
    */
   session?: SessionRule
+  /**
+   * The body a write takes: JSON (the default) or a multipart upload. Any other content type
+   * is a 415, so a form posted from another site is refused even before its origin is looked at.
+   */
+  accepts?: 'json' | 'multipart'
   /** Extra middleware (uploads, rate limits) run after the role check and before validation. */
   before?: RequestHandler[]
   params?: P
@@ -86,6 +91,22 @@ export function route<
   return spec as unknown as RouteDef
 }
 
+const BODY_TYPES = { json: 'application/json', multipart: 'multipart/form-data' } as const
+
+/** Refuses a write whose body is not the content type the route takes; bodyless writes pass. */
+export function requireContentType(accepts: 'json' | 'multipart'): RequestHandler {
+  const type = BODY_TYPES[accepts]
+  return (req, _res, next) => {
+    // A body is there when it has a length above zero or comes chunked (RFC 9112 §6.3).
+    const length = req.headers['content-length']
+    const hasBody =
+      req.headers['transfer-encoding'] !== undefined || (length !== undefined && length !== '0')
+    if (req.method === 'GET' || req.method === 'HEAD' || !hasBody) return next()
+    if (req.is(type)) return next()
+    next(new AppError('unsupported_media_type', `Send this request's body as ${type}`))
+  }
+}
+
 export function requireRole(roles: RouteDef['roles']): RequestHandler {
   return (req: Request, _res: Response, next: NextFunction) => {
     if (roles === 'public') return next()
@@ -116,6 +137,7 @@ export function buildRouter(
       def.path,
       requireRole(def.roles),
       ...guard,
+      requireContentType(def.accepts ?? 'json'),
       ...(def.before ?? []),
       withInput(def),
     )

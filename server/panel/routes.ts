@@ -71,6 +71,7 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/import',
       roles: ADMIN,
+      accepts: 'multipart',
       before: [csvUpload],
       handler: async (req, res) => {
         if (!req.file) throw badRequest('Attach a CSV file in the field "file"')
