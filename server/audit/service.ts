@@ -17,6 +17,20 @@ export interface AuditEvent {
   details?: Record<string, unknown>
 }
 
+/** Anything shaped like an address (RFC 5322 addr-spec, loosely): never copied into details. */
+const ADDRESS = /[^\s@"'<>(),;:]+@[^\s@"'<>(),;:]+\.[^\s@"'<>(),;:]+/g
+
+/**
+ * Details are free text that the audit page shows and searches; the actor's address has its
+ * own column, and the target its id. An address that slips into details anyway is replaced,
+ * so deleting a person on request does not leave their address behind in old entries.
+ */
+function withoutAddresses(details: Record<string, unknown>): string {
+  return JSON.stringify(details, (_key, value: unknown) =>
+    typeof value === 'string' ? value.replace(ADDRESS, '[address]') : value,
+  )
+}
+
 /** Writes one audit row; pass the transaction so the record and the change land together. */
 export async function recordAudit(
   db: Knex,
@@ -31,7 +45,7 @@ export async function recordAudit(
     action: event.action,
     target_type: event.targetType ?? null,
     target_id: event.targetId === undefined ? null : String(event.targetId),
-    details: JSON.stringify(event.details ?? {}),
+    details: withoutAddresses(event.details ?? {}),
     ip: actor.ip ?? null,
   })
 }

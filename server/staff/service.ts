@@ -61,7 +61,7 @@ export async function inviteStaff(
       action: 'staff.invited',
       targetType: 'user',
       targetId: id,
-      details: { email: body.email, role: body.role },
+      details: { role: body.role },
     })
     return row
   })
@@ -133,12 +133,14 @@ export async function updateStaff(
       action: changes.status === 'deactivated' ? 'staff.deactivated' : 'staff.updated',
       targetType: 'user',
       targetId: id,
+      // Who changed what: the account is the target; an address itself is not repeated here.
       details: {
-        email: user.email,
         changes: Object.fromEntries(
           Object.entries(changes).map(([k, v]) => [
             k,
-            { from: (user as unknown as Record<string, unknown>)[k], to: v },
+            k === 'email'
+              ? 'changed'
+              : { from: (user as unknown as Record<string, unknown>)[k], to: v },
           ]),
         ),
       },
