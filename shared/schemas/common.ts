@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { LIMITS } from '../constants'
+import { visibleText } from './visibleText'
 
 export const email = z
   .string()
@@ -8,11 +9,9 @@ export const email = z
   .max(LIMITS.emailMax, `At most ${LIMITS.emailMax} characters`)
   .pipe(z.email('Not a valid e-mail address'))
 
-export const personName = z
-  .string()
-  .trim()
-  .min(1, 'Required')
-  .max(LIMITS.nameMax, `At most ${LIMITS.nameMax} characters`)
+export const personName = visibleText(
+  z.string().trim().min(1, 'Required').max(LIMITS.nameMax, `At most ${LIMITS.nameMax} characters`),
+)
 
 export const password = z
   .string()

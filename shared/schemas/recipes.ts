@@ -11,6 +11,7 @@ import {
   WINDING_PROFILES,
   type Instrument,
 } from '../constants'
+import { visibleText } from './visibleText'
 
 export const windingLayer = z.strictObject({
   material: z.enum(WINDING_MATERIALS, `Material is one of ${WINDING_MATERIALS.join(', ')}`),
@@ -23,7 +24,7 @@ export const windingLayer = z.strictObject({
 export type WindingLayer = z.infer<typeof windingLayer>
 
 const recipeFields = {
-  name: z.string().trim().min(1, 'Required').max(LIMITS.nameMax),
+  name: visibleText(z.string().trim().min(1, 'Required').max(LIMITS.nameMax)),
   instrument: z.enum(INSTRUMENTS, `Instrument is one of ${INSTRUMENTS.join(', ')}`),
   stringName: z.string().trim().min(1, 'Required').max(4),
   core: z.enum(CORES, `Core is one of ${CORES.join(', ')}`),

@@ -475,12 +475,15 @@ describe('importing a panel CSV', () => {
   })
 
   it('refuses a request without a file, or with the file in another field, with 400', async () => {
-    const none = await admin.post('/api/panel/import').send({})
+    const none = await admin.post('/api/panel/import')
+    // A JSON body is the wrong kind of request for an upload altogether (RFC 9110 §15.5.16).
+    const json = await admin.post('/api/panel/import').send({})
     const elsewhere = await admin
       .post('/api/panel/import')
       .attach('upload', Buffer.from(`${HEADER}\n`), 'panel.csv')
 
     expect(none.status).toBe(400)
+    expect(json.status).toBe(415)
     expect(elsewhere.status).toBe(400)
   })
 

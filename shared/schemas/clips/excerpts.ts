@@ -1,9 +1,10 @@
 import { z } from 'zod'
+import { visibleText } from '../visibleText'
 
 // The managed list of passages that clips play.
 
 export const createExcerptBody = z.strictObject({
-  name: z.string().trim().min(1, 'Required').max(80, 'At most 80 characters'),
+  name: visibleText(z.string().trim().min(1, 'Required').max(80, 'At most 80 characters')),
   description: z.string().trim().max(500, 'At most 500 characters').default(''),
 })
 export type CreateExcerptBody = z.input<typeof createExcerptBody>

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { ARCHIVED_FILTERS, LIMITS } from '../../constants'
 import { isoDate } from '../common'
+import { visibleText } from '../visibleText'
 import { CLIP_KINDS, CLIP_LIMITS } from './vocabulary'
 
 // What the clip pages send: one upload, an edit, the list filter and a manifest's rows.
@@ -8,13 +9,16 @@ import { CLIP_KINDS, CLIP_LIMITS } from './vocabulary'
 const blankToNull = (v: unknown) =>
   v === '' || v === undefined || (typeof v === 'string' && v.trim() === '') ? null : v
 
-// Codes stand for people and instruments in results, so they are plain and case-blind.
+// Codes stand for people and instruments in results, so they are plain and case-blind. The
+// visible check comes before the letters rule, so a blank code is told why first.
 const code = (what: string) =>
-  z
-    .string(`${what} is required`)
-    .trim()
-    .min(1, 'Required')
-    .max(CLIP_LIMITS.codeMax, `At most ${CLIP_LIMITS.codeMax} characters`)
+  visibleText(
+    z
+      .string(`${what} is required`)
+      .trim()
+      .min(1, 'Required')
+      .max(CLIP_LIMITS.codeMax, `At most ${CLIP_LIMITS.codeMax} characters`),
+  )
     .regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, 'Letters, digits, dot, dash or underscore; no spaces')
     .transform((s) => s.toUpperCase())
 

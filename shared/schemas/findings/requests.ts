@@ -1,16 +1,19 @@
 import { z } from 'zod'
 import { INSTRUMENTS, PLAYER_LEVELS } from '../../constants'
+import { visibleText } from '../visibleText'
 
 // What the findings page and its exports accept: exclusions, the subgroup filter and the
 // table names.
 
 export const EXCLUSION_REASON = { min: 3, max: 500 } as const
 
-const reason = z
-  .string('A reason is required')
-  .trim()
-  .min(EXCLUSION_REASON.min, `Say why in at least ${EXCLUSION_REASON.min} characters`)
-  .max(EXCLUSION_REASON.max, `At most ${EXCLUSION_REASON.max} characters`)
+const reason = visibleText(
+  z
+    .string('A reason is required')
+    .trim()
+    .min(EXCLUSION_REASON.min, `Say why in at least ${EXCLUSION_REASON.min} characters`)
+    .max(EXCLUSION_REASON.max, `At most ${EXCLUSION_REASON.max} characters`),
+)
 
 /** POST /api/findings/:id/exclusions */
 export const excludePlayerBody = z.strictObject({

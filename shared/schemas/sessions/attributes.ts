@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { visibleText } from '../visibleText'
 
 /** An attribute as it is copied into a session: later edits elsewhere cannot change it. */
 export const attributeSpec = z.strictObject({
@@ -6,9 +7,9 @@ export const attributeSpec = z.strictObject({
     .string()
     .trim()
     .regex(/^[a-z][a-z0-9_]{0,39}$/, 'Lower-case letters, digits and _; starts with a letter'),
-  name: z.string().trim().min(1, 'Required').max(60),
-  low: z.string().trim().min(1, 'Required').max(40),
-  high: z.string().trim().min(1, 'Required').max(40),
+  name: visibleText(z.string().trim().min(1, 'Required').max(60)),
+  low: visibleText(z.string().trim().min(1, 'Required').max(40)),
+  high: visibleText(z.string().trim().min(1, 'Required').max(40)),
 })
 export type AttributeSpec = z.infer<typeof attributeSpec>
 

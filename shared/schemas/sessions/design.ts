@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { LIMITS } from '../../constants'
 import { isoDate } from '../common'
+import { visibleText } from '../visibleText'
 import { attributeSpec, DEFAULT_ATTRIBUTES } from './attributes'
 
 // What a session is: its format and status, and the design a developer sends to make or
@@ -36,7 +37,7 @@ export const PLAYER_TITLE_MAX = 80
 
 export const sessionDesignFields = {
   /** Staff only: players see the player title and message instead. */
-  name: z.string().trim().min(1, 'Required').max(LIMITS.nameMax),
+  name: visibleText(z.string().trim().min(1, 'Required').max(LIMITS.nameMax)),
   purpose: z.string().trim().max(LIMITS.notesMax),
   format: z.enum(SESSION_FORMATS, 'Choose a format'),
   recipeIds: z
@@ -50,11 +51,13 @@ export const sessionDesignFields = {
     .refine((a) => new Set(a.map((x) => x.key)).size === a.length, 'Two attributes share a key'),
   duplicates: z.number().int().min(0, 'Cannot be negative').max(50),
   allowNoPreference: z.boolean(),
-  playerTitle: z
-    .string()
-    .trim()
-    .min(1, 'Required: the title players see')
-    .max(PLAYER_TITLE_MAX, `At most ${PLAYER_TITLE_MAX} characters`),
+  playerTitle: visibleText(
+    z
+      .string()
+      .trim()
+      .min(1, 'Required: the title players see')
+      .max(PLAYER_TITLE_MAX, `At most ${PLAYER_TITLE_MAX} characters`),
+  ),
   playerMessage: z.string().trim().max(LIMITS.notesMax),
   deadline: isoDate,
   reminderDaysBefore: z.number().int().min(0).max(30).nullable(),
@@ -70,11 +73,16 @@ export const SESSION_LIMITS = {
   invitePlayersMax: 500,
 } as const
 
-const timePointLabel = z
-  .string()
-  .trim()
-  .min(1, 'Required')
-  .max(SESSION_LIMITS.timePointLabelMax, `At most ${SESSION_LIMITS.timePointLabelMax} characters`)
+const timePointLabel = visibleText(
+  z
+    .string()
+    .trim()
+    .min(1, 'Required')
+    .max(
+      SESSION_LIMITS.timePointLabelMax,
+      `At most ${SESSION_LIMITS.timePointLabelMax} characters`,
+    ),
+)
 
 /** A new session: only what cannot be guessed is required. */
 export const sessionDesignBody = z
