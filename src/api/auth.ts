@@ -1,5 +1,5 @@
 import type { Me } from '@shared/types/api'
-import type { LoginBody } from '@shared/schemas/auth'
+import type { ChangePasswordBody, LoginBody } from '@shared/schemas/auth'
 import { api } from './client'
 
 export interface Features {
@@ -11,8 +11,12 @@ export const authApi = {
   login: (body: LoginBody) => api.post<{ user: Me }>('/auth/login', body, { quiet401: true }),
   logout: () => api.post<void>('/auth/logout'),
   forgot: (email: string) => api.post<{ message: string }>('/auth/forgot', { email }),
+  // POST, so the link's token never appears in an address the server or a proxy logs.
   inspectLink: (token: string) =>
-    api.get<{ email: string; name: string; purpose: 'reset' | 'invite' }>('/auth/link', { token }),
+    api.post<{ email: string; name: string; purpose: 'reset' | 'invite' }>('/auth/link', {
+      token,
+    }),
   setPassword: (token: string, password: string) =>
     api.post<{ user: Me }>('/auth/set-password', { token, password }),
+  changePassword: (body: ChangePasswordBody) => api.post<{ user: Me }>('/auth/password', body),
 }

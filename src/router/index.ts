@@ -115,6 +115,13 @@ export const routes: RouteRecordRaw[] = [
         meta: { roles: ADMIN, nav: 'Mail', navGroup: 'admin', title: 'Mail' },
       },
       {
+        // Reached from the user menu in the app shell, not from the navigation.
+        path: 'account',
+        name: 'account',
+        component: () => import('@/views/AccountView.vue'),
+        meta: { roles: STAFF, title: 'Your account' },
+      },
+      {
         path: 'no-access',
         name: 'no-access',
         component: () => import('@/views/NoAccessView.vue'),

@@ -76,7 +76,7 @@ describe('an admin in the browser', () => {
       .click()
     const body = page.locator('[data-test=mail-body]')
     await expect.poll(() => body.textContent()).toContain('Benedikt Arrowsmith')
-    const link = await body.locator('a[href*="/set-password?token="]').getAttribute('href')
+    const link = await body.locator('a[href*="/set-password#token="]').getAttribute('href')
     expect(link).toBeTruthy()
     await page.screenshot({ path: join(SHOTS, 'admin-mailbox.png') })
 

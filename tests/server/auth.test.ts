@@ -258,3 +258,34 @@ describe('demo accounts in production', () => {
     await t.close()
   })
 })
+
+describe('a password longer than bcrypt reads', () => {
+  it('never signs in on its first 72 bytes alone', async () => {
+    const t = await buildApp()
+    const now = new Date().toISOString()
+    const stored = 'A'.repeat(72)
+    const hash = bcrypt.hashSync(stored, 4)
+    // The reference: bcrypt takes at most 72 bytes of key (Provos and Mazières 1999, "A
+    // Future-Adaptable Password Scheme"), so the library itself matches any longer tail.
+    expect(bcrypt.compareSync(`${stored}and any tail`, hash)).toBe(true)
+    await t.knex('users').insert({
+      email: 'long.password@example.test',
+      name: 'Tamsin Harrowgate',
+      role: 'analyst',
+      status: 'active',
+      password_hash: hash,
+      created_at: now,
+      updated_at: now,
+    })
+    const login = (password: string) =>
+      request(t.app).post('/api/auth/login').send({ email: 'long.password@example.test', password })
+
+    const withTail = await login(`${stored}and any tail`)
+    const exact = await login(stored)
+
+    expect(withTail.status).toBe(401)
+    expect(withTail.body.error.message).toBe('E-mail or password is not right')
+    expect(exact.status).toBe(200)
+    await t.close()
+  })
+})

@@ -110,9 +110,9 @@ export function cookieValue(setCookie: string): string {
   return setCookie.split(';')[0]
 }
 
-/** The token of the set-password link in a mail's text part. */
+/** The token of the set-password link in a mail's text part (in the fragment; older: query). */
 export function linkToken(mail: { text: string }): string {
-  const match = /\/set-password\?token=([^\s"<]+)/.exec(mail.text)
+  const match = /\/set-password[#?]token=([^\s"<]+)/.exec(mail.text)
   if (!match) throw new Error('no set-password link in the mail')
   return decodeURIComponent(match[1])
 }

@@ -151,8 +151,8 @@ describe('mail through a real SMTP server', () => {
       subject: 'You are invited to Ringdown',
     })
     expect(mail.text).toContain('Hello Sabine Ellery,')
-    expect(mail.text).toMatch(/http:\/\/localhost:3000\/set-password\?token=/)
-    expect(mail.html).toMatch(/<a href="http:\/\/localhost:3000\/set-password\?token=/)
+    expect(mail.text).toMatch(/http:\/\/localhost:3000\/set-password#token=/)
+    expect(mail.html).toMatch(/<a href="http:\/\/localhost:3000\/set-password#token=/)
 
     const agent = request.agent(t.app)
     const accepted = await agent
