@@ -42,7 +42,6 @@ export const LIMITS = {
   regionMax: 80,
   notesMax: 2000,
   passwordMin: 10,
-  passwordMax: 200,
   searchMax: 100,
   csvMaxBytes: 1_000_000,
   csvMaxRows: 5000,

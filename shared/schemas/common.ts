@@ -13,11 +13,6 @@ export const personName = visibleText(
   z.string().trim().min(1, 'Required').max(LIMITS.nameMax, `At most ${LIMITS.nameMax} characters`),
 )
 
-export const password = z
-  .string()
-  .min(LIMITS.passwordMin, `At least ${LIMITS.passwordMin} characters`)
-  .max(LIMITS.passwordMax, `At most ${LIMITS.passwordMax} characters`)
-
 /** An ISO calendar date (YYYY-MM-DD) that really exists. */
 export const isoDate = z
   .string()
