@@ -26,7 +26,8 @@ export interface Config {
   mailLimits: {
     /** Least time between two reminders to one player. */
     reminderGapMs: number
-    /** Most invitation and reminder mails one session may queue in an hour. */
+    /** Most invitation and reminder mails one session may queue in an hour: above the largest
+     * invite (500), so inviting a whole panel at once still works. */
     sessionMailsPerHour: number
     /** Most password-reset mails one address receives in an hour. */
     resetsPerHour: number
@@ -65,7 +66,10 @@ export function secretProblem(secret: string): string | null {
     return 'must be at least 32 characters: make one with `openssl rand -base64 48`'
   if (new Set(secret).size < 12)
     return 'repeats too few characters to be random: make one with `openssl rand -base64 48`'
-  if (PLACEHOLDERS.test(secret) && new Set(secret.replace(new RegExp(PLACEHOLDERS, 'gi'), '')).size < 12)
+  if (
+    PLACEHOLDERS.test(secret) &&
+    new Set(secret.replace(new RegExp(PLACEHOLDERS, 'gi'), '')).size < 12
+  )
     return 'looks like a placeholder: make one with `openssl rand -base64 48`'
   return null
 }
@@ -110,7 +114,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     },
     mailLimits: {
       reminderGapMs: int(env.REMINDER_GAP_HOURS, 12, 'REMINDER_GAP_HOURS') * 3_600_000,
-      sessionMailsPerHour: int(env.SESSION_MAILS_PER_HOUR, 400, 'SESSION_MAILS_PER_HOUR'),
+      sessionMailsPerHour: int(env.SESSION_MAILS_PER_HOUR, 600, 'SESSION_MAILS_PER_HOUR'),
       resetsPerHour: int(env.RESETS_PER_HOUR, 3, 'RESETS_PER_HOUR'),
     },
     jsonLimit: env.JSON_LIMIT || '100kb',
@@ -139,7 +143,7 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
     bcryptCost: 4,
     loginRateLimit: { windowMs: 60_000, max: 1000 },
     accountThrottle: { windowMs: 15 * 60_000, maxFailures: 10 },
-    mailLimits: { reminderGapMs: 12 * 3_600_000, sessionMailsPerHour: 400, resetsPerHour: 3 },
+    mailLimits: { reminderGapMs: 12 * 3_600_000, sessionMailsPerHour: 600, resetsPerHour: 3 },
     jsonLimit: '100kb',
     mail: { maxAttempts: 3, retryBaseMs: 1000, pollMs: 0 },
     ...overrides,

@@ -1,6 +1,7 @@
 /*
  * Acting on invitations already sent: sending one again, reminding one player or a whole
- * session, and revoking, which kills every link sent for the invitation.
+ * session, and revoking, which kills every link sent for the invitation. Mail goes only as
+ * often as throttle.ts allows, checked in the transaction that queues it.
  */
 import { randomUUID } from 'node:crypto'
 import type { Knex } from 'knex'
@@ -11,7 +12,15 @@ import { loadSession } from '../sessions/rows'
 import { invitationStatus, loadInvitation, queueInvitationMail } from './rows'
 import { assertInvitable } from './invite'
 import { invitationContext, rowOf } from './tracking'
-import type { InvitationRow } from '../../shared/schemas/sessions'
+import {
+  assertMayRemind,
+  assertMayResend,
+  assertRoomFor,
+  assertSomeRoom,
+  nextMailAt,
+  sessionRoom,
+} from './throttle'
+import type { InvitationRow, RemindAllResult } from '../../shared/schemas/sessions'
 
 /**
  * Sends the invitation again. A revoked invitation comes back with a new token id, so the
@@ -28,6 +37,13 @@ export async function resendInvitation(
     assertInvitable(session, now)
     if (!player.email) throw conflict('This player has no e-mail address any more')
     if (inv.completed_at) throw conflict('This player has already finished the session')
+    // A revoke and restore sends mail too, so it waits like any resend.
+    assertMayResend(inv, now)
+    assertRoomFor(
+      await sessionRoom(trx, session.id, now, ctx.config.mailLimits.sessionMailsPerHour),
+      1,
+      now,
+    )
     const restored = inv.revoked_at ? { token_id: randomUUID(), revoked_at: null } : {}
     await trx('invitations')
       .where({ id })
@@ -82,6 +98,12 @@ export async function remindInvitation(
     const status = invitationStatus(inv, session, now)
     if (status === 'revoked') throw conflict('This invitation was revoked; resend it to restore it')
     if (status === 'done') throw conflict('This player has already finished the session')
+    assertMayRemind(inv, ctx.config.mailLimits.reminderGapMs, now)
+    assertRoomFor(
+      await sessionRoom(trx, session.id, now, ctx.config.mailLimits.sessionMailsPerHour),
+      1,
+      now,
+    )
     await queueReminder(ctx, trx, id, now, false)
     await recordAudit(trx, now, actor, {
       action: 'invitation.reminded',
@@ -93,36 +115,58 @@ export async function remindInvitation(
   return rowOf(ctx, id)
 }
 
-/** Reminds every player of the session who has not finished and was not revoked. */
+/**
+ * Reminds every player of the session who has not finished and was not revoked, except those
+ * whose last mail went within the reminder gap. When the hourly cap leaves room for only some,
+ * the first in player order are reminded and the rest are counted as held back: each reminder
+ * is whole, and a later call picks up the others. With no room at all the call is refused.
+ */
 export async function remindSession(
   ctx: AppContext,
   sessionId: number,
   actor: Actor,
-): Promise<number> {
+): Promise<RemindAllResult> {
   const now = ctx.clock.now()
-  const reminded = await ctx.knex.transaction(async (trx) => {
+  const { reminderGapMs, sessionMailsPerHour } = ctx.config.mailLimits
+  const result = await ctx.knex.transaction(async (trx) => {
     const session = await loadSession(trx, sessionId)
     assertInvitable(session, now)
-    const ids = (
-      (await trx('invitations')
-        .where({ session_id: sessionId })
-        .whereNull('revoked_at')
-        .whereNull('completed_at')
-        .orderBy('player_index')
-        .select('id')) as { id: number }[]
-    ).map((r) => r.id)
-    for (const id of ids) await queueReminder(ctx, trx, id, now, false)
-    if (ids.length)
+    const open: { id: number; last_sent_at: string; last_reminded_at: string | null }[] = await trx(
+      'invitations',
+    )
+      .where({ session_id: sessionId })
+      .whereNull('revoked_at')
+      .whereNull('completed_at')
+      .orderBy('player_index')
+      .select('id', 'last_sent_at', 'last_reminded_at')
+    const due = open.filter((r) => !nextMailAt(r, reminderGapMs, now))
+    const room = await sessionRoom(trx, sessionId, now, sessionMailsPerHour)
+    assertSomeRoom(room, due.length, now)
+    const sent = due.slice(0, room.free)
+    for (const { id } of sent) await queueReminder(ctx, trx, id, now, false)
+    const heldBack = due.length - sent.length
+    const counts = { reminded: sent.length, skippedRecent: open.length - due.length, heldBack }
+    if (sent.length)
       await recordAudit(trx, now, actor, {
         action: 'session.reminded',
         targetType: 'session',
         targetId: sessionId,
-        details: { reminded: ids.length },
+        details: counts,
       })
-    return ids.length
+    // When the next of them fit: all, or as many as one hour allows.
+    const after = heldBack
+      ? (await sessionRoom(trx, sessionId, now, sessionMailsPerHour)).fitsAt(
+          Math.min(heldBack, sessionMailsPerHour),
+        )
+      : null
+    return {
+      ...counts,
+      reminderGapHours: reminderGapMs / 3_600_000,
+      moreAfter: after?.toISOString() ?? null,
+    }
   })
-  void ctx.outbox.deliverDue()
-  return reminded
+  if (result.reminded) void ctx.outbox.deliverDue()
+  return result
 }
 
 /** Every link sent for this invitation stops working at once: the token id they carry is gone. */

@@ -11,6 +11,7 @@ import { loadSession, type SessionRow } from '../sessions/rows'
 import { trialCountOf } from '../sessions/plans'
 import { deadlineEnd } from '../auth/invitationTokens'
 import { loadInvitation, queueInvitationMail, type InvitedPlayer } from './rows'
+import { assertRoomFor, sessionRoom } from './throttle'
 import type { InviteResult } from '../../shared/schemas/sessions'
 
 /** Refuses mail for a session that is not open, or whose deadline has passed. */
@@ -30,6 +31,8 @@ const playerColumns = ['id', 'code', 'name', 'email', 'status'] as const
 /**
  * Invites each chosen player once: a player already invited keeps the invitation (and the
  * plan) they have, so inviting twice, or two people inviting at once, yields one invitation.
+ * A call whose new invitations would pass the session's hourly mail cap is refused whole, so
+ * no one is left wondering which of the chosen players got a mail.
  */
 export async function invitePlayers(
   ctx: AppContext,
@@ -63,6 +66,13 @@ export async function invitePlayers(
           .select('player_id')) as { player_id: number }[]
       ).map((r) => r.player_id),
     )
+    const fresh = ids.filter((id) => !existing.has(id)).length
+    if (fresh)
+      assertRoomFor(
+        await sessionRoom(trx, sessionId, now, ctx.config.mailLimits.sessionMailsPerHour),
+        fresh,
+        now,
+      )
     const [{ max }] = (await trx('invitations')
       .where({ session_id: sessionId })
       .max({ max: 'player_index' })) as { max: number | null }[]

@@ -3,6 +3,7 @@ import type { AppContext } from '../context'
 import { notFound } from '../errors'
 import { deadlineEnd, signInvitation } from '../auth/invitationTokens'
 import { firstNameOf, invitationMail, type InvitationMailKind } from './mail'
+import { logSessionMail, nextMailAt, RESEND_GAP_MS } from './throttle'
 import type { SessionRow } from '../sessions/rows'
 import type { InvitationRow, InvitationStatus } from '../../shared/schemas/sessions'
 
@@ -67,8 +68,15 @@ export function toInvitationRow(
   inv: InvitationDbRow,
   player: InvitedPlayer,
   session: SessionRow,
-  extra: { now: Date; answered: number; trialCount: number; personal: boolean },
+  extra: {
+    now: Date
+    answered: number
+    trialCount: number
+    personal: boolean
+    reminderGapMs: number
+  },
 ): InvitationRow {
+  const next = (gapMs: number) => nextMailAt(inv, gapMs, extra.now)?.toISOString() ?? null
   return {
     id: inv.id,
     sessionId: inv.session_id,
@@ -78,12 +86,15 @@ export function toInvitationRow(
     playerEmail: extra.personal ? player.email : null,
     status: invitationStatus(inv, session, extra.now),
     invitedAt: inv.invited_at,
+    lastSentAt: inv.last_sent_at,
     openedAt: inv.opened_at,
     startedAt: inv.started_at,
     completedAt: inv.completed_at,
     revokedAt: inv.revoked_at,
     lastRemindedAt: inv.last_reminded_at,
     remindersSent: inv.reminders_sent,
+    nextReminderAt: next(extra.reminderGapMs),
+    nextResendAt: next(RESEND_GAP_MS),
     answered: extra.answered,
     trialCount: extra.trialCount,
   }
@@ -99,7 +110,10 @@ export function invitationUrl(ctx: AppContext, inv: InvitationDbRow, session: Se
   return `${ctx.config.publicUrl}/p/${token}`
 }
 
-/** Queues the personal mail inside the caller's transaction; the link is signed afresh. */
+/**
+ * Queues the personal mail inside the caller's transaction; the link is signed afresh. Each mail
+ * counts against the session's hourly cap, which the caller checked in the same transaction.
+ */
 export async function queueInvitationMail(
   ctx: AppContext,
   trx: Knex,
@@ -128,4 +142,5 @@ export async function queueInvitationMail(
     },
     trx,
   )
+  await logSessionMail(trx, session.id, kind, ctx.clock.now())
 }

@@ -35,12 +35,14 @@ function checkState(
   return record?.status ?? 'not_done'
 }
 
+/** The session's invitations in player order; each says when its next reminder may go. */
 export async function listInvitations(
-  knex: Knex,
+  ctx: AppContext,
   sessionId: number,
   now: Date,
   personal: boolean,
 ): Promise<InvitationRow[]> {
+  const { knex } = ctx
   const session = await loadSession(knex, sessionId)
   const rows: (InvitationDbRow & { code: string; name: string | null; email: string | null })[] =
     await knex('invitations as i')
@@ -59,7 +61,13 @@ export async function listInvitations(
       r,
       { id: r.player_id, code: r.code, name: r.name, email: r.email },
       session,
-      { now, answered: answered.get(r.id) ?? 0, trialCount, personal },
+      {
+        now,
+        answered: answered.get(r.id) ?? 0,
+        trialCount,
+        personal,
+        reminderGapMs: ctx.config.mailLimits.reminderGapMs,
+      },
     ),
     headphoneCheck: checkState(session.format, checks.get(r.id)),
   }))
@@ -85,6 +93,7 @@ export async function rowOf(ctx: AppContext, id: number): Promise<InvitationRow>
       now: ctx.clock.now(),
       ...progress,
       personal: true,
+      reminderGapMs: ctx.config.mailLimits.reminderGapMs,
     }),
     headphoneCheck: checkState(session.format, recordOf(await checkRows(ctx.knex, inv.id))),
   }

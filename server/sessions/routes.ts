@@ -115,7 +115,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res, { params }) => {
         // Analysts work with player codes; names and addresses stay with those who send mail.
         const personal = req.user?.role !== 'analyst'
-        res.json({ invitations: await listInvitations(ctx.knex, params.id, now(), personal) })
+        res.json({ invitations: await listInvitations(ctx, params.id, now(), personal) })
       },
     }),
     route({
@@ -136,7 +136,7 @@ export function sessionRoutes(ctx: AppContext): RouteDef[] {
       roles: EDITORS,
       params: idParam,
       handler: async (req, res, { params }) => {
-        res.json({ reminded: await remindSession(ctx, params.id, actorOf(req)) })
+        res.json(await remindSession(ctx, params.id, actorOf(req)))
       },
     }),
     route({

@@ -6,6 +6,7 @@ import type {
   OpenSessionBody,
   PlannerQuery,
   PlannerResult,
+  RemindAllResult,
   SessionPreview,
   SessionDesign,
   SessionDetail,
@@ -32,7 +33,7 @@ export const sessionsApi = {
     api.get<{ invitations: InvitationRow[] }>(`/sessions/${id}/invitations`),
   invite: (id: number, playerIds: number[]) =>
     api.post<InviteResult>(`/sessions/${id}/invitations`, { playerIds }),
-  remindAll: (id: number) => api.post<{ reminded: number }>(`/sessions/${id}/remind`),
+  remindAll: (id: number) => api.post<RemindAllResult>(`/sessions/${id}/remind`),
   labels: (id: number) => api.get<LabelSheet>(`/sessions/${id}/labels`),
   packingList: (id: number) => api.get<PackingList>(`/sessions/${id}/packing-list`),
   planner: (query: PlannerQuery) =>

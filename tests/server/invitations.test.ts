@@ -145,7 +145,8 @@ describe('the player link', () => {
     return { id, players, tokens, invitations }
   }
 
-  const land = (token: string) => request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
+  const land = (token: string) =>
+    request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
 
   it('opens the landing page without sign-in, marks it opened once, and shows nothing else', async () => {
     const { id, tokens } = await invited()
@@ -211,6 +212,8 @@ describe('the player link', () => {
 
     const revoked = await developer.post(`/api/invitations/${invitations[1].id}/revoke`)
     const refused = await land(tokens[1])
+    // A restore is a resend, which waits ten minutes after the player's last mail.
+    clock.advance(11 * 60_000)
     const resent = await developer.post(`/api/invitations/${invitations[1].id}/resend`)
     await t.settle()
     const fresh = playerToken(lastMailTo(t.mailer, email))
@@ -263,7 +266,9 @@ describe('a deadline moved while the session runs', () => {
 
     await developer.patch(`/api/sessions/${id}`).send({ deadline: isoDay(clock.now(), 5) })
     clock.advance(3 * DAY)
-    const extended = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
+    const extended = await request(t.app)
+      .get('/api/player/invitation')
+      .set('X-Invitation-Token', token)
     clock.advance(3 * DAY)
     const over = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
 
@@ -294,19 +299,33 @@ describe('reminders', () => {
       .update({ completed_at: clock.now().toISOString() })
     await addAnswers(t.knex, invs[1].id, [0, 1], clock.now().toISOString())
     await developer.post(`/api/invitations/${invs[3].id}/revoke`)
+    // A reminder waits the reminder gap (12 h by default) after the invitation mail.
+    const later = 13 * 3600_000
+    clock.advance(later)
+    const staff = await signInAs(t.app, 'developer')
+    const remindedAt = clock.now().toISOString()
 
-    const one = await developer.post(`/api/invitations/${invs[1].id}/remind`)
-    const toDone = await developer.post(`/api/invitations/${invs[0].id}/remind`)
-    const toRevoked = await developer.post(`/api/invitations/${invs[3].id}/remind`)
-    const all = await developer.post(`/api/sessions/${id}/remind`)
+    const one = await staff.post(`/api/invitations/${invs[1].id}/remind`)
+    const toDone = await staff.post(`/api/invitations/${invs[0].id}/remind`)
+    const toRevoked = await staff.post(`/api/invitations/${invs[3].id}/remind`)
+    const all = await staff.post(`/api/sessions/${id}/remind`)
     await t.settle()
+    clock.advance(-later)
+    developer = await signInAs(t.app, 'developer')
     const reminder = lastMailTo(t.mailer, await emailOf(t, players[1]))
 
     expect(one.body.invitation).toMatchObject({ remindersSent: 1, answered: 2 })
-    expect(one.body.invitation.lastRemindedAt).toBe(clock.now().toISOString())
+    expect(one.body.invitation.lastRemindedAt).toBe(remindedAt)
     expect(toDone.status).toBe(409)
     expect(toRevoked.status).toBe(409)
-    expect(all.body).toEqual({ reminded: 2 })
+    // The player reminded a moment before is left out of "everyone".
+    expect(all.body).toEqual({
+      reminded: 1,
+      skippedRecent: 1,
+      heldBack: 0,
+      reminderGapHours: 12,
+      moreAfter: null,
+    })
     expect(reminder.subject).toBe('Reminder: Evening listening')
     expect(reminder.text).toMatch(/answered 2 of 3 trials/)
     expect(`${reminder.text}${reminder.html}`).not.toContain('Winding study')
@@ -404,7 +423,9 @@ describe('invitation mail through a real SMTP server', () => {
       (m: { to: string }) => m.to === email,
     )
     const token = playerToken(mail)
-    const landing = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
+    const landing = await request(t.app)
+      .get('/api/player/invitation')
+      .set('X-Invitation-Token', token)
 
     expect(mail.subject).toBe('Invitation: Evening listening')
     expect(mail.text).toMatch(/Please finish by \d{4}-\d{2}-\d{2}/)

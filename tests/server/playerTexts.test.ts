@@ -65,6 +65,9 @@ describe('the words that reach players', () => {
     })
     const [playerId] = await addPlayers(t.knex, 1)
     await developer.post(`/api/sessions/${id}/invitations`).send({ playerIds: [playerId] })
+    // A reminder waits the reminder gap (12 h by default) after the invitation mail.
+    clock.advance(13 * 3600_000)
+    developer = await signInAs(t.app, 'developer')
     await developer.post(`/api/sessions/${id}/remind`)
     await t.settle()
     const email = (await t.knex('players').where({ id: playerId }).first('email')).email

@@ -30,12 +30,21 @@ export interface InvitationRow {
   playerEmail: string | null
   status: InvitationStatus
   invitedAt: string
+  /** When the invitation mail last went (first sent or sent again). */
+  lastSentAt: string
   openedAt: string | null
   startedAt: string | null
   completedAt: string | null
   revokedAt: string | null
   lastRemindedAt: string | null
   remindersSent: number
+  /**
+   * When the next reminder may go: the reminder gap after the player's last mail. Null when one
+   * may go now (whether the status allows one is the status's business).
+   */
+  nextReminderAt: string | null
+  /** Likewise for sending the invitation again, which waits a shorter gap. */
+  nextResendAt: string | null
   answered: number
   trialCount: number
   /**
@@ -51,6 +60,19 @@ export type HeadphoneCheckState = 'passed' | 'retry' | 'failed' | 'not_done'
 export interface InviteResult {
   created: number
   existing: number
+}
+
+/** What "remind everyone not done" did. */
+export interface RemindAllResult {
+  reminded: number
+  /** Players left out because their last mail went within the reminder gap. */
+  skippedRecent: number
+  /** Players left out because the session's hourly mail cap was reached; a later call sends. */
+  heldBack: number
+  /** The reminder gap, in hours, for the words beside the counts. */
+  reminderGapHours: number
+  /** When the next of those held back fit (all, or an hour's worth); null when none were. */
+  moreAfter: string | null
 }
 
 export interface LabelSet {
