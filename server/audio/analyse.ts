@@ -1,10 +1,10 @@
 import { attackTime, type AttackResult } from './attack.ts'
 import { spectralCentroid } from './centroid.ts'
 import { decayTime, lossFactor, qualityFactor, type DecayResult } from './decay.ts'
-import { decodeAudio } from './decode.ts'
+import { decodeAudio, decodeAudioFile } from './decode.ts'
 import { AudioError } from './errors.ts'
 import { integratedLoudness } from './loudness.ts'
-import { mixToMono, samplePeakDbfs } from './level.ts'
+import { mixToMono, mixToMonoInPlace, samplePeakDbfs } from './level.ts'
 import { waveformPeaks, type WaveformPeaks } from './peaks.ts'
 import { estimateF0 } from './pitch.ts'
 import type { DecodedAudio } from './types.ts'
@@ -57,12 +57,37 @@ export async function analyseClip(
 ): Promise<ClipAnalysis> {
   const maxSeconds = options.maxSeconds ?? DEFAULT_MAX_SECONDS
   const audio = await decodeAudio(bytes, { maxSeconds })
-  return analyseDecoded(audio, options)
+  return measure(audio, options, true)
+}
+
+/**
+ * The same as `analyseClip` for a file on disk, read in blocks: only the decoded channels are
+ * ever held, and the mono mix is made in the first of them rather than beside them.
+ */
+export async function analyseClipFile(
+  path: string,
+  options: AnalyseOptions,
+): Promise<ClipAnalysis> {
+  const maxSeconds = options.maxSeconds ?? DEFAULT_MAX_SECONDS
+  const audio = await decodeAudioFile(path, { maxSeconds })
+  return measure(audio, options, true)
 }
 
 /** The measures on audio already decoded (for example a rendition built from the original). */
 export function analyseDecoded(audio: DecodedAudio, options: AnalyseOptions): ClipAnalysis {
+  return measure(audio, options, false)
+}
+
+/**
+ * The measures. The ones that need every channel (peak, loudness, waveform) come first; the rest
+ * describe the sound and use the channels' average. When the caller owns the decoded samples
+ * (`owned`), that average is written over the first channel and the others let go, so a stereo
+ * clip never holds a third copy of its length; otherwise it is a new array and the input is left
+ * as it came.
+ */
+function measure(audio: DecodedAudio, options: AnalyseOptions, owned: boolean): ClipAnalysis {
   const { sampleRate, channels } = audio
+  const channelCount = channels.length
   const frames = channels[0]?.length ?? 0
   if (frames === 0) throw new AudioError('empty', 'The recording holds no samples.')
   const peakDbfs = samplePeakDbfs(channels)
@@ -70,7 +95,9 @@ export function analyseDecoded(audio: DecodedAudio, options: AnalyseOptions): Cl
     throw new AudioError('silent', 'The recording is silent.')
   }
   const loudness = integratedLoudness(channels, sampleRate)
-  const mono = mixToMono(channels)
+  const peaks = waveformPeaks(channels, options.peakBuckets)
+  const mono = owned ? mixToMonoInPlace(channels) : mixToMono(channels)
+  if (owned) audio.channels = [mono]
   const pitch = estimateF0(mono, sampleRate)
   const f0Hz = pitch?.f0Hz ?? null
 
@@ -94,7 +121,7 @@ export function analyseDecoded(audio: DecodedAudio, options: AnalyseOptions): Cl
     format: audio.format,
     durationSeconds: frames / sampleRate,
     sampleRate,
-    channels: channels.length,
+    channels: channelCount,
     bitDepth: audio.bitDepth,
     peakDbfs,
     loudnessLufs: Number.isFinite(loudness) ? loudness : null,
@@ -102,6 +129,6 @@ export function analyseDecoded(audio: DecodedAudio, options: AnalyseOptions): Cl
     f0Hz,
     decay,
     attack: options.kind === 'bowed' ? attackTime(mono, sampleRate) : null,
-    peaks: waveformPeaks(channels, options.peakBuckets),
+    peaks,
   }
 }

@@ -1,3 +1,5 @@
+import { readSync } from 'node:fs'
+import { open } from 'node:fs/promises'
 import { AudioError } from './errors.ts'
 import type { DecodedAudio, DecodeOptions, SampleFormat } from './types.ts'
 
@@ -63,13 +65,22 @@ function readFmt(view: DataView, offset: number, size: number): FmtChunk {
   return { format, channels, sampleRate, containerBits, validBits, blockAlign }
 }
 
-function deinterleave(bytes: Uint8Array, fmt: FmtChunk, frames: number): Float32Array[] {
-  const { channels: count, containerBits, format } = fmt
-  const channels = Array.from({ length: count }, () => new Float32Array(frames))
+/**
+ * Samples of `frames` whole frames into `channels`, starting at frame `at` of each: the data of
+ * a file can arrive in blocks, each written where it belongs, so no block outlives its turn.
+ */
+function deinterleave(
+  bytes: Uint8Array,
+  fmt: FmtChunk,
+  frames: number,
+  channels: Float32Array[],
+  at = 0,
+): void {
+  const { containerBits, format } = fmt
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
   // One tight loop per sample layout: this is the hot path for every upload.
-  for (let c = 0; c < count; c++) {
-    const out = channels[c]
+  for (let c = 0; c < channels.length; c++) {
+    const out = channels[c].subarray(at, at + frames)
     const step = fmt.blockAlign
     let p = c * (containerBits / 8)
     if (format === 'float' && containerBits === 32) {
@@ -89,41 +100,53 @@ function deinterleave(bytes: Uint8Array, fmt: FmtChunk, frames: number): Float32
       for (let i = 0; i < frames; i++, p += step) out[i] = (bytes[p] - 128) / 128
     }
   }
-  return channels
 }
 
+/** Up to `length` bytes from `offset` (fewer at the end of the file). */
+type ReadAt = (offset: number, length: number) => Uint8Array
+
+interface WavLayout {
+  container: 'wav' | 'rf64'
+  fmt: FmtChunk
+  /** Where the samples start, in bytes from the start of the file. */
+  dataOffset: number
+  frames: number
+}
+
+const viewOf = (bytes: Uint8Array) => new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
+
 /**
- * Reads RIFF/WAVE and RF64 by walking the chunk list, skipping anything that is not `fmt ` or
- * `data`. Refusals are decided from the header before samples are touched, so a file that claims
- * gigabytes of audio costs nothing. A data chunk that declares more bytes than the file holds is
- * refused rather than played short, because the recording is then not the one the uploader made.
+ * Walks the RIFF/WAVE or RF64 chunk list of a file of `total` bytes, skipping anything that is not
+ * `fmt ` or `data`. Refusals are decided here, from the headers, before any sample is touched, so
+ * a file that claims gigabytes of audio costs nothing. A data chunk that declares more bytes than
+ * the file holds is refused rather than played short, because the recording is then not the one
+ * the uploader made.
  */
-export function decodeWav(bytes: Uint8Array, options: DecodeOptions = {}): DecodedAudio {
-  const maxSeconds = options.maxSeconds ?? Infinity
-  if (bytes.length < 12) throw new AudioError('truncated', 'The WAV header is incomplete.')
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
-  const container = chunkId(view, 0) === 'RF64' ? 'rf64' : 'wav'
+function readLayout(total: number, at: ReadAt, maxSeconds: number): WavLayout {
+  if (total < 12) throw new AudioError('truncated', 'The WAV header is incomplete.')
+  const container = chunkId(viewOf(at(0, 4)), 0) === 'RF64' ? 'rf64' : 'wav'
   let ds64DataSize: number | undefined
   let fmt: FmtChunk | undefined
   let offset = 12
 
-  while (offset + 8 <= bytes.length) {
-    const id = chunkId(view, offset)
-    let size = view.getUint32(offset + 4, true)
+  while (offset + 8 <= total) {
+    const header = viewOf(at(offset, 8))
+    const id = chunkId(header, 0)
+    let size = header.getUint32(4, true)
     const body = offset + 8
 
     if (id === 'ds64') {
-      if (size < 24 || body + 24 > bytes.length) {
+      if (size < 24 || body + 24 > total) {
         throw new AudioError('truncated', 'The RF64 size chunk is incomplete.')
       }
       // Sizes beyond 2^53 cannot be real files; the number type keeps the refusal exact enough.
-      ds64DataSize =
-        view.getUint32(body + 8, true) + view.getUint32(body + 12, true) * 0x1_0000_0000
+      const ds64 = viewOf(at(body, 24))
+      ds64DataSize = ds64.getUint32(8, true) + ds64.getUint32(12, true) * 0x1_0000_0000
     } else if (id === 'fmt ') {
-      if (body + Math.min(size, 40) > bytes.length) {
+      if (body + Math.min(size, 40) > total) {
         throw new AudioError('truncated', 'The WAV format chunk is incomplete.')
       }
-      fmt = readFmt(view, body, size)
+      fmt = readFmt(viewOf(at(body, Math.min(size, 40))), 0, size)
     } else if (id === 'data') {
       if (!fmt) throw new AudioError('corrupt', 'The WAV data comes before its format chunk.')
       if (container === 'rf64' && size === SIZE_IN_DS64 && ds64DataSize !== undefined) {
@@ -137,7 +160,7 @@ export function decodeWav(bytes: Uint8Array, options: DecodeOptions = {}): Decod
             `${Math.round(declaredFrames / fmt.sampleRate)} s; the limit is ${maxSeconds} s.`,
         )
       }
-      const present = Math.min(size, bytes.length - body)
+      const present = Math.min(size, total - body)
       if (present < fmt.blockAlign) throw new AudioError('empty', 'The WAV holds no samples.')
       if (present < size) {
         throw new AudioError(
@@ -145,17 +168,92 @@ export function decodeWav(bytes: Uint8Array, options: DecodeOptions = {}): Decod
           `The WAV declares ${size} bytes of samples but holds only ${present}.`,
         )
       }
-      const data = bytes.subarray(body, body + declaredFrames * fmt.blockAlign)
-      return {
-        container,
-        sampleRate: fmt.sampleRate,
-        channels: deinterleave(data, fmt, declaredFrames),
-        bitDepth: fmt.validBits,
-        format: fmt.format,
-      }
+      return { container, fmt, dataOffset: body, frames: declaredFrames }
     }
     offset = body + size + (size & 1)
   }
   if (!fmt) throw new AudioError('corrupt', 'The WAV has no format chunk.')
   throw new AudioError('empty', 'The WAV holds no samples.')
+}
+
+function decoded(layout: WavLayout, channels: Float32Array[]): DecodedAudio {
+  return {
+    container: layout.container,
+    sampleRate: layout.fmt.sampleRate,
+    channels,
+    bitDepth: layout.fmt.validBits,
+    format: layout.fmt.format,
+  }
+}
+
+const newChannels = (layout: WavLayout) =>
+  Array.from({ length: layout.fmt.channels }, () => new Float32Array(layout.frames))
+
+/** Reads RIFF/WAVE and RF64 held in memory (see readLayout for what is refused). */
+export function decodeWav(bytes: Uint8Array, options: DecodeOptions = {}): DecodedAudio {
+  const at: ReadAt = (offset, length) => bytes.subarray(offset, offset + length)
+  const layout = readLayout(bytes.length, at, options.maxSeconds ?? Infinity)
+  const channels = newChannels(layout)
+  const data = bytes.subarray(
+    layout.dataOffset,
+    layout.dataOffset + layout.frames * layout.fmt.blockAlign,
+  )
+  deinterleave(data, layout.fmt, layout.frames, channels)
+  return decoded(layout, channels)
+}
+
+// Headers are read through a window of this size, so a file of many small chunks costs few reads.
+const HEADER_WINDOW = 64 * 1024
+// Samples are read in blocks of about this size: the file never sits in memory beside them.
+const DATA_BLOCK = 1024 * 1024
+
+/** Header reads through a window of the file, for the chunk walk (a few bytes at a time). */
+function windowedReader(fd: number, total: number): ReadAt {
+  let start = 0
+  let window = new Uint8Array(0)
+  return (offset, length) => {
+    if (offset < start || offset + length > start + window.length) {
+      const size = Math.max(0, Math.min(Math.max(length, HEADER_WINDOW), total - offset))
+      const buffer = new Uint8Array(size)
+      window = buffer.subarray(0, readSync(fd, buffer, 0, size, offset))
+      start = offset
+    }
+    return window.subarray(offset - start, offset - start + length)
+  }
+}
+
+/**
+ * Reads a WAV or RF64 file from disk: the same refusals and the same samples as `decodeWav`, but
+ * the file itself is never held whole; its samples arrive in blocks of about 1 MB, each written
+ * straight into the channel arrays.
+ */
+export async function decodeWavFile(
+  path: string,
+  options: DecodeOptions = {},
+): Promise<DecodedAudio> {
+  const file = await open(path, 'r')
+  try {
+    const { size } = await file.stat()
+    const layout = readLayout(size, windowedReader(file.fd, size), options.maxSeconds ?? Infinity)
+    const { fmt, frames } = layout
+    const channels = newChannels(layout)
+    const blockFrames = Math.max(1, Math.floor(DATA_BLOCK / fmt.blockAlign))
+    const block = new Uint8Array(Math.min(frames, blockFrames) * fmt.blockAlign)
+    for (let done = 0; done < frames;) {
+      const count = Math.min(blockFrames, frames - done)
+      const length = count * fmt.blockAlign
+      const position = layout.dataOffset + done * fmt.blockAlign
+      for (let filled = 0; filled < length;) {
+        const { bytesRead } = await file.read(block, filled, length - filled, position + filled)
+        // The file was measured above; it can only be shorter now if it changed under us.
+        if (bytesRead === 0) throw new AudioError('truncated', 'The WAV ended while it was read.')
+        filled += bytesRead
+      }
+      deinterleave(block.subarray(0, length), fmt, count, channels, done)
+      done += count
+    }
+    return decoded(layout, channels)
+  } finally {
+    await file.close()
+  }
 }

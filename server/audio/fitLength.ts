@@ -41,3 +41,34 @@ export function fitLength(
     return out
   })
 }
+
+/**
+ * `fitLength` for channels nobody else holds: a take long enough is cut to a view of itself and
+ * faded where it lies, so bringing a long take to its set costs no second copy. A channel that
+ * stands for several (duplicated mono) is faded once and shared; only a take short by a frame or
+ * two gets a new, padded array. The numbers are those `fitLength` gives.
+ */
+export function fitLengthInPlace(
+  channels: readonly Float32Array[],
+  frames: number,
+  sampleRate: number,
+  fadeSeconds = END_FADE_SECONDS,
+): Float32Array[] {
+  const fade = Math.min(frames, Math.round(fadeSeconds * sampleRate))
+  const fitted = new Map<Float32Array, Float32Array>()
+  return channels.map((channel) => {
+    const known = fitted.get(channel)
+    if (known) return known
+    let out: Float32Array
+    if (channel.length >= frames) out = channel.subarray(0, frames)
+    else {
+      out = new Float32Array(frames)
+      out.set(channel)
+    }
+    for (let k = 1; k <= fade; k++) {
+      out[frames - fade + k - 1] *= 0.5 + 0.5 * Math.cos((Math.PI * k) / fade)
+    }
+    fitted.set(channel, out)
+    return out
+  })
+}

@@ -35,3 +35,25 @@ export function mixToMono(channels: readonly Float32Array[]): Float32Array {
   for (let i = 0; i < length; i++) mono[i] *= scale
   return mono
 }
+
+/**
+ * `mixToMono` written over the first channel, for samples nobody else holds: the same numbers,
+ * without a new array the length of the clip.
+ */
+export function mixToMonoInPlace(channels: readonly Float32Array[]): Float32Array {
+  const [mono, ...rest] = channels
+  if (rest.length === 0) return mono
+  const length = mono.length
+  if (rest.length === 1) {
+    const [right] = rest
+    for (let i = 0; i < length; i++) mono[i] = 0.5 * (mono[i] + right[i])
+    return mono
+  }
+  // mixToMono sums into zeros; 0 + x only differs from x for −0, which no measure can tell.
+  for (const channel of rest) {
+    for (let i = 0; i < length; i++) mono[i] += channel[i]
+  }
+  const scale = 1 / channels.length
+  for (let i = 0; i < length; i++) mono[i] *= scale
+  return mono
+}

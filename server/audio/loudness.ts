@@ -1,4 +1,4 @@
-import { kWeighting, type Biquad } from './kWeighting.ts'
+import { kWeighting, type KWeighting } from './kWeighting.ts'
 
 const BLOCK_STEPS = 4 // 400 ms blocks made of 100 ms steps give the 75 % overlap
 const ABSOLUTE_GATE_LUFS = -70
@@ -15,62 +15,94 @@ export function channelWeights(channelCount: number): number[] {
 }
 
 /**
- * Energy of the K-weighted signal in consecutive steps of `step` samples. Both filter stages run
- * in one pass without storing the filtered signal: this loop is most of the cost of analysis.
+ * Energy of the K-weighted signal in consecutive steps of `step` samples, fed in parts of any
+ * length (a whole channel at once, or a file as it is written). Both filter stages run in one
+ * pass without storing the filtered signal: this loop is most of the cost of analysis. Samples
+ * after the last whole step are not counted.
  */
-function kWeightedStepEnergy(
-  samples: Float32Array,
-  shelf: Biquad,
-  highPass: Biquad,
-  step: number,
-): Float64Array {
-  const steps = Math.floor(samples.length / step)
-  const energy = new Float64Array(steps)
-  const [sb0, sb1, sb2] = shelf.b
-  const [sa1, sa2] = shelf.a
-  const [hb0, hb1, hb2] = highPass.b
-  const [ha1, ha2] = highPass.a
-  let x1 = 0
-  let x2 = 0
-  let m1 = 0
-  let m2 = 0
-  let y1 = 0
-  let y2 = 0
-  let i = 0
-  for (let s = 0; s < steps; s++) {
-    let sum = 0
-    for (const end = i + step; i < end; i++) {
-      const x = samples[i]
-      const m = sb0 * x + sb1 * x1 + sb2 * x2 - sa1 * m1 - sa2 * m2
-      const y = hb0 * m + hb1 * m1 + hb2 * m2 - ha1 * y1 - ha2 * y2
-      x2 = x1
-      x1 = x
-      m2 = m1
-      m1 = m
-      y2 = y1
-      y1 = y
-      sum += y * y
-    }
-    energy[s] = sum
+export class KWeightedSteps {
+  readonly energy: Float64Array
+  private steps = 0
+  private inStep = 0
+  private sum = 0
+  private x1 = 0
+  private x2 = 0
+  private m1 = 0
+  private m2 = 0
+  private y1 = 0
+  private y2 = 0
+
+  constructor(
+    private readonly filter: KWeighting,
+    private readonly step: number,
+    /** Samples the channel will have in all, which fixes the number of steps. */
+    frames: number,
+  ) {
+    this.energy = new Float64Array(Math.floor(frames / step))
   }
-  return energy
+
+  push(samples: Float32Array): void {
+    const { shelf, highPass } = this.filter
+    const [sb0, sb1, sb2] = shelf.b
+    const [sa1, sa2] = shelf.a
+    const [hb0, hb1, hb2] = highPass.b
+    const [ha1, ha2] = highPass.a
+    const { step, energy } = this
+    let { x1, x2, m1, m2, y1, y2, sum, inStep, steps } = this
+    let i = 0
+    while (i < samples.length && steps < energy.length) {
+      const end = Math.min(samples.length, i + step - inStep)
+      inStep += end - i
+      for (; i < end; i++) {
+        const x = samples[i]
+        const m = sb0 * x + sb1 * x1 + sb2 * x2 - sa1 * m1 - sa2 * m2
+        const y = hb0 * m + hb1 * m1 + hb2 * m2 - ha1 * y1 - ha2 * y2
+        x2 = x1
+        x1 = x
+        m2 = m1
+        m1 = m
+        y2 = y1
+        y1 = y
+        sum += y * y
+      }
+      if (inStep === step) {
+        energy[steps++] = sum
+        sum = 0
+        inStep = 0
+      }
+    }
+    Object.assign(this, { x1, x2, m1, m2, y1, y2, sum, inStep, steps })
+  }
 }
+
+/** The 100 ms step of the blocks, in whole samples (exact at all common rates). */
+export const loudnessStep = (sampleRate: number) => Math.round(sampleRate / 10)
 
 /**
  * The K-weighted, channel-weighted mean square of every 400 ms block (a block every 100 ms): what
- * the BS.1770 gates act on. The 100 ms step is rounded to whole samples, which is exact at all
- * common rates. Empty when the signal is shorter than one block.
+ * the BS.1770 gates act on. Empty when the signal is shorter than one block.
  */
 export function loudnessBlocks(
   channels: readonly Float32Array[],
   sampleRate: number,
   weights: readonly number[] = channelWeights(channels.length),
 ): Float64Array {
-  const { shelf, highPass } = kWeighting(sampleRate)
-  const step = Math.round(sampleRate / 10)
-  const stepEnergies = channels.map((channel) =>
-    kWeightedStepEnergy(channel, shelf, highPass, step),
-  )
+  const filter = kWeighting(sampleRate)
+  const step = loudnessStep(sampleRate)
+  const stepEnergies = channels.map((channel) => {
+    const steps = new KWeightedSteps(filter, step, channel.length)
+    steps.push(channel)
+    return steps.energy
+  })
+  return blocksOfSteps(stepEnergies, step, weights)
+}
+
+/** Blocks (see loudnessBlocks) from each channel's step energies. */
+export function blocksOfSteps(
+  stepEnergies: readonly Float64Array[],
+  step: number,
+  weights: readonly number[] = channelWeights(stepEnergies.length),
+): Float64Array {
   const blockCount = Math.max(0, (stepEnergies[0]?.length ?? 0) - BLOCK_STEPS + 1)
 
   // Weighted mean square of each block, summed over channels.

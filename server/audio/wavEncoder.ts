@@ -49,13 +49,33 @@ export function encodeWav(
   const bytesPerSample = bitDepth / 8
   const blockAlign = bytesPerSample * channels.length
   const data = new Uint8Array(frames * blockAlign)
-  writeSamples(data, channels, format, bitDepth, gain)
+  writeSamples(data, channels, format, bitDepth, gain, 0, frames)
+  const fmt = fmtChunk(channels.length, sampleRate, bitDepth, format, extensible)
 
+  const chunks: Uint8Array[] = [encoder.encode('WAVE'), chunk('fmt ', fmt)]
+  for (const c of options.chunksBeforeData ?? []) chunks.push(chunk(c.id, c.data))
+  chunks.push(chunk('data', data, options.declaredDataBytes))
+  for (const c of options.chunksAfterData ?? []) chunks.push(chunk(c.id, c.data))
+  const body = concatBytes(chunks)
+  const header = new Uint8Array(8)
+  header.set(encoder.encode('RIFF'))
+  new DataView(header.buffer).setUint32(4, body.length, true)
+  return concatBytes([header, body])
+}
+
+function fmtChunk(
+  channelCount: number,
+  sampleRate: number,
+  bitDepth: number,
+  format: 'pcm' | 'float',
+  extensible: boolean,
+): Uint8Array {
+  const blockAlign = (bitDepth / 8) * channelCount
   const fmt = new Uint8Array(extensible ? 40 : 16)
   const f = new DataView(fmt.buffer)
   const tag = format === 'float' ? 3 : 1
   f.setUint16(0, extensible ? 0xfffe : tag, true)
-  f.setUint16(2, channels.length, true)
+  f.setUint16(2, channelCount, true)
   f.setUint32(4, sampleRate, true)
   f.setUint32(8, sampleRate * blockAlign, true)
   f.setUint16(12, blockAlign, true)
@@ -70,24 +90,48 @@ export function encodeWav(
       24,
     )
   }
-
-  const chunks: Uint8Array[] = [encoder.encode('WAVE'), chunk('fmt ', fmt)]
-  for (const c of options.chunksBeforeData ?? []) chunks.push(chunk(c.id, c.data))
-  chunks.push(chunk('data', data, options.declaredDataBytes))
-  for (const c of options.chunksAfterData ?? []) chunks.push(chunk(c.id, c.data))
-  const body = concatBytes(chunks)
-  const header = new Uint8Array(8)
-  header.set(encoder.encode('RIFF'))
-  new DataView(header.buffer).setUint32(4, body.length, true)
-  return concatBytes([header, body])
+  return fmt
 }
 
-function writeSamples(
+/**
+ * The 44 bytes before the samples of a plain PCM WAV holding only a format and a data chunk, as
+ * `encodeWav` writes it; the samples follow, then one pad byte when their length is odd.
+ */
+export function pcmWavHeader(
+  channelCount: number,
+  sampleRate: number,
+  bitDepth: 8 | 16 | 24 | 32,
+  frames: number,
+): Uint8Array {
+  const dataLength = frames * (bitDepth / 8) * channelCount
+  const header = new Uint8Array(44)
+  const view = new DataView(header.buffer)
+  header.set(encoder.encode('RIFF'))
+  view.setUint32(4, 4 + 8 + 16 + 8 + dataLength + (dataLength & 1), true)
+  header.set(encoder.encode('WAVEfmt '), 8)
+  view.setUint32(16, 16, true)
+  header.set(fmtChunk(channelCount, sampleRate, bitDepth, 'pcm', false), 20)
+  header.set(encoder.encode('data'), 36)
+  view.setUint32(40, dataLength, true)
+  return header
+}
+
+/** The integer a sample becomes at a bit depth of full scale `full`: rounded, clipped. */
+export const pcmInteger = (x: number, full: number) =>
+  Math.max(-full, Math.min(full - 1, Math.round(x * full)))
+
+/**
+ * Frames `from`…`to` of the channels, interleaved from the start of `out`: a whole file at once,
+ * or one block of it at a time.
+ */
+export function writeSamples(
   out: Uint8Array,
   channels: readonly Float32Array[],
   format: 'pcm' | 'float',
   bitDepth: number,
   gain: number,
+  from: number,
+  to: number,
 ): void {
   const view = new DataView(out.buffer, out.byteOffset, out.byteLength)
   const count = channels.length
@@ -96,14 +140,14 @@ function writeSamples(
   channels.forEach((channel, c) => {
     let p = c * bytesPerSample
     const step = count * bytesPerSample
-    for (let i = 0; i < channel.length; i++, p += step) {
+    for (let i = from, end = Math.min(to, channel.length); i < end; i++, p += step) {
       const x = channel[i] * gain
       if (format === 'float') {
         if (bitDepth === 64) view.setFloat64(p, x, true)
         else view.setFloat32(p, x, true)
         continue
       }
-      const v = Math.max(-full, Math.min(full - 1, Math.round(x * full)))
+      const v = pcmInteger(x, full)
       if (bitDepth === 8) out[p] = v + 128
       else if (bitDepth === 16) view.setInt16(p, v, true)
       else if (bitDepth === 32) view.setInt32(p, v, true)

@@ -6,7 +6,7 @@ import type { Knex } from 'knex'
 import type { AppContext } from '../context'
 import { notFound } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
-import { originalPath, readOriginal, removeMedia, renditionPath } from './storage'
+import { originalPath, removeMedia, renditionPath } from './storage'
 import { measureColumns, measureRecording } from './measure'
 import { memberOfRow, setKeyId } from './setMembers'
 import { resolveClipFields, type ResolvedFields } from './fields'
@@ -50,7 +50,7 @@ export function updateClip(
     const remeasured =
       after.kind !== before.kind
         ? measureColumns(
-            await measureRecording(await readOriginal(deps.folders, row.original_file), after.kind),
+            await measureRecording(originalPath(deps.folders, row.original_file), after.kind),
           )
         : {}
     const write = async (trx: Knex.Transaction) => {

@@ -10,7 +10,6 @@ import {
   fileNameProblem,
   keepOriginal,
   originalPath,
-  readUpload,
   removeMedia,
   writeOriginal,
   type UploadedFile,
@@ -109,7 +108,8 @@ export function uploadProblem(file: UploadedFile): string | null {
 export async function measureUpload(file: UploadedFile, kind: ClipUploadFields['kind']) {
   const problem = uploadProblem(file)
   if (problem) throw new RecordingRefused(problem)
-  return measureRecording(await readUpload(file), kind)
+  // Measured from its file on disk, read in blocks: the upload is never held whole.
+  return measureRecording(file.path, kind)
 }
 
 export async function uploadClip(

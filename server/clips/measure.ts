@@ -1,4 +1,4 @@
-import { analyseClip, isAudioError, type ClipAnalysis } from '../audio/index.ts'
+import { analyseClip, analyseClipFile, isAudioError, type ClipAnalysis } from '../audio/index.ts'
 import { CLIP_LIMITS, type ClipKind } from '../../shared/schemas/clips'
 import type { StoredContainer } from './storage'
 import { CLIP_MEASURES, type ClipMeasureKey } from '../../shared/measures'
@@ -13,13 +13,21 @@ export interface Measured {
 export class RecordingRefused extends Error {}
 
 /**
- * Decodes and measures an upload. Anything the audio code refuses (not audio, empty, truncated,
- * corrupt, too long, silent) comes back as RecordingRefused with the decoder's own sentence.
+ * Decodes and measures a recording: its bytes, or (better for anything long) the path of its
+ * file, which is then read in blocks rather than held whole. Anything the audio code refuses
+ * (not audio, empty, truncated, corrupt, too long, silent) comes back as RecordingRefused with
+ * the decoder's own sentence.
  */
-export async function measureRecording(bytes: Uint8Array, kind: ClipKind): Promise<Measured> {
+export async function measureRecording(
+  recording: Uint8Array | string,
+  kind: ClipKind,
+): Promise<Measured> {
   let analysis: ClipAnalysis
   try {
-    analysis = await analyseClip(bytes, { kind })
+    analysis =
+      typeof recording === 'string'
+        ? await analyseClipFile(recording, { kind })
+        : await analyseClip(recording, { kind })
   } catch (err) {
     if (isAudioError(err)) throw new RecordingRefused(err.message)
     throw err

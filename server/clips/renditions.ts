@@ -2,23 +2,23 @@
  * Writing the blind renditions of matched sets: every rendition of a set in one format, at one
  * loudness measured on the file itself.
  */
-import { readFile } from 'node:fs/promises'
 import {
   chooseSetFormat,
-  decodeAudio,
-  decodeWav,
+  decodeAudioFile,
+  decodeWavFile,
   LEVEL_TOLERANCE_LU,
   levelInput,
+  matchRenditionLevel,
   matchSetLevels,
   prepareRendition,
   sameSetFormat,
-  writeMatchedRendition,
+  writeRenditionWavFile,
   type SetFormat,
   type SetLevelInput,
 } from '../audio/index.ts'
 import { CLIP_LIMITS } from '../../shared/schemas/clips'
 import {
-  readOriginal,
+  originalPath,
   removeMedia,
   renditionPath,
   writeRenditionFile,
@@ -41,9 +41,11 @@ const RETAIN_SAMPLES = 32 * 2 ** 20
 
 const yieldToOthers = () => new Promise<void>((resolve) => setImmediate(resolve))
 
+// The original is read from disk in blocks and its samples cut and faded where they lie: one
+// copy of the take in memory, not the file, its samples and a fitted copy of them.
 async function prepared(folders: MediaFolders, member: SetMember, format: SetFormat) {
-  const audio = await decodeAudio(await readOriginal(folders, member.originalFile))
-  return prepareRendition(audio, format)
+  const audio = await decodeAudioFile(originalPath(folders, member.originalFile))
+  return prepareRendition(audio, format, true)
 }
 
 /**
@@ -61,8 +63,7 @@ async function writtenLevel(
   if (renditionFile === null || gainDb === null || rendition === null) return null
   if (!sameSetFormat(rendition.format, format)) return null
   try {
-    const file = await readFile(renditionPath(folders, renditionFile))
-    const audio = decodeWav(new Uint8Array(file.buffer, file.byteOffset, file.byteLength))
+    const audio = await decodeWavFile(renditionPath(folders, renditionFile))
     const frames = audio.channels[0]?.length ?? 0
     if (audio.channels.length !== format.channels || frames !== format.frames) return null
     const level = levelInput(audio.channels, format.sampleRate)
@@ -130,18 +131,26 @@ async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<Rendi
         Math.abs(r.loudnessLufs - levels.targetLufs) <= LEVEL_TOLERANCE_LU
       if (current) continue
       const channels = kept.get(member) ?? (await prepared(folders, member, format))
-      const written = writeMatchedRendition(
+      // The gain is checked on the samples as the file will hold them, then the file is written
+      // block by block: it never exists whole in memory.
+      const level = matchRenditionLevel(
         channels,
         format,
         levels.gainsDb[i],
         levels.targetLufs,
         CLIP_LIMITS.ceilingDbfs,
       )
+      const file = await writeRenditionFile(folders, (path) =>
+        writeRenditionWavFile(path, channels, format.sampleRate, {
+          bitDepth: format.bitDepth,
+          gainDb: level.gainDb,
+        }),
+      )
       changes.push({
         member,
-        gainDb: written.gainDb,
-        file: await writeRenditionFile(folders, written.bytes),
-        facts: { format, loudnessLufs: written.loudnessLufs },
+        gainDb: level.gainDb,
+        file,
+        facts: { format, loudnessLufs: level.loudnessLufs },
       })
       await yieldToOthers()
     }

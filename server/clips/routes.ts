@@ -51,10 +51,12 @@ function sendMedia(
 export function clipRoutes(ctx: AppContext): RouteDef[] {
   const dir = mediaFolders(ctx.config.mediaDir).incoming
   const maxMb = ctx.config.uploadMaxMb
-  const single = tempUpload({ dir, maxMb, fields: [{ name: 'file', maxCount: 1 }] })
+  const batchMaxMb = ctx.config.uploadBatchMaxMb
+  const single = tempUpload({ dir, maxMb, batchMaxMb, fields: [{ name: 'file', maxCount: 1 }] })
   const batch = tempUpload({
     dir,
     maxMb,
+    batchMaxMb,
     fields: [
       { name: 'manifest', maxCount: 1 },
       { name: 'files', maxCount: CLIP_LIMITS.batchMaxFiles },

@@ -76,11 +76,6 @@ export function contentTypeProblem(mimeType: string): string | null {
   return `Files sent as ${type} are not accepted; send WAV or FLAC recordings`
 }
 
-export async function readUpload(file: UploadedFile): Promise<Uint8Array> {
-  const buffer = await readFile(file.path)
-  return new Uint8Array(buffer.buffer, buffer.byteOffset, buffer.byteLength)
-}
-
 /** Moves a checked upload out of the temp folder; same disk, so nothing is copied. */
 export async function keepOriginal(
   folders: MediaFolders,
@@ -105,10 +100,17 @@ export async function writeOriginal(
   return name
 }
 
-export async function writeRenditionFile(folders: MediaFolders, bytes: Uint8Array) {
+/**
+ * A new rendition under a fresh name, written by `write`, which must create the file at the path
+ * it is given (and not leave it half-written if it fails). Returns the name.
+ */
+export async function writeRenditionFile(
+  folders: MediaFolders,
+  write: (path: string) => Promise<void>,
+): Promise<string> {
   await mkdir(folders.renditions, { recursive: true })
   const name = opaqueName('wav')
-  await writeFile(renditionPath(folders, name), bytes, { flag: 'wx' })
+  await write(renditionPath(folders, name))
   return name
 }
 

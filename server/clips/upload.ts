@@ -1,15 +1,20 @@
 import { randomBytes } from 'node:crypto'
 import { mkdirSync, rmSync } from 'node:fs'
 import { join } from 'node:path'
+import { Transform } from 'node:stream'
 import type { NextFunction, Request, RequestHandler, Response } from 'express'
 import multer, { MulterError } from 'multer'
 import { AppError, badRequest } from '../errors'
+import { megabytes, refuseDeclaredOver, uploadTooLarge } from '../http/uploadSize'
 import type { UploadedFile } from './storage'
 
 export interface TempUploadOptions {
   /** Folder for files still being checked; it must sit on the media folder's disk. */
   dir: string
+  /** Largest single file. */
   maxMb: number
+  /** Largest total of all files of one request. */
+  batchMaxMb: number
   fields: { name: string; maxCount: number }[]
 }
 
@@ -23,12 +28,43 @@ export function discardTempFiles(res: Response): void {
 }
 
 /**
+ * Disk storage whose files pass through a counter of the request's file bytes on their way to
+ * disk. Once the total passes the limit the file being written fails, which makes the upload
+ * fail: nothing more is written, and the files so far are deleted like any failed upload's.
+ */
+function countedStorage(disk: multer.StorageEngine, limit: number, refusal: () => Error) {
+  const engine: multer.StorageEngine = {
+    _handleFile(req, file, cb) {
+      const locals = req.res!.locals
+      locals.uploadBytes ??= 0
+      const counted = new Transform({
+        transform(chunk: Buffer, _encoding, done) {
+          const total = (locals.uploadBytes as number) + chunk.length
+          locals.uploadBytes = total
+          if (total > limit) return done(refusal())
+          done(null, chunk)
+        },
+      })
+      // A failure on either side ends both, as one stream would.
+      file.stream.on('error', (err) => counted.destroy(err))
+      file.stream.pipe(counted)
+      Object.defineProperty(file, 'stream', { value: counted, configurable: true })
+      disk._handleFile(req, file, cb)
+    },
+    _removeFile: (req, file, cb) => disk._removeFile(req, file, cb),
+  }
+  return engine
+}
+
+/**
  * Multipart upload to a temp folder under random names. Every file written is remembered, and
  * deleted when the handler is done, when the upload fails half-way, and again when the response
- * closes: a refused or interrupted upload never leaves a file behind.
+ * closes: a refused or interrupted upload never leaves a file behind. Each file is held to
+ * `maxMb` and all files of the request together to `batchMaxMb`: a request that declares a
+ * length over that is refused before it is read, and the files are counted as they arrive.
  */
 export function tempUpload(options: TempUploadOptions): RequestHandler {
-  const storage = multer.diskStorage({
+  const disk = multer.diskStorage({
     destination: (_req, _file, cb) => {
       mkdirSync(options.dir, { recursive: true })
       cb(null, options.dir)
@@ -39,13 +75,17 @@ export function tempUpload(options: TempUploadOptions): RequestHandler {
       cb(null, name)
     },
   })
+  const storage = countedStorage(disk, megabytes(options.batchMaxMb), () =>
+    uploadTooLarge(options.batchMaxMb),
+  )
+  const declared = refuseDeclaredOver(options.batchMaxMb)
   const upload = multer({
     storage,
     // The full name is kept so that a name with a path in it can be refused, not quietly cut.
     preservePath: true,
     defParamCharset: 'utf8',
     limits: {
-      fileSize: options.maxMb * 1024 * 1024,
+      fileSize: megabytes(options.maxMb),
       files: options.fields.reduce((n, f) => n + f.maxCount, 0),
       fields: 40,
       fieldSize: 100_000,
@@ -54,10 +94,13 @@ export function tempUpload(options: TempUploadOptions): RequestHandler {
 
   return (req: Request, res: Response, next: NextFunction) => {
     res.once('close', () => discardTempFiles(res))
-    upload(req, res, (err?: unknown) => {
-      if (!err) return next()
-      discardTempFiles(res)
-      next(uploadError(err, options))
+    declared(req, res, (refused?: unknown) => {
+      if (refused) return next(refused)
+      upload(req, res, (err?: unknown) => {
+        if (!err) return next()
+        discardTempFiles(res)
+        next(uploadError(err, options))
+      })
     })
   }
 }

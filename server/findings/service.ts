@@ -10,13 +10,8 @@ import { pairPreferences } from './preferences'
 import { triangleFindings } from './triangle'
 import { reliabilityFindings } from './reliability'
 import { objectiveFindings } from './objective'
-import {
-  clipMeasures,
-  loadFindingsData,
-  type FindingsData,
-} from './data'
+import { clipMeasures, loadFindingsData, type FindingsData } from './data'
 import { clipIdsOfSet, designOf } from '../sessions/rows'
-
 
 export interface ComputedFindings {
   findings: SessionFindings

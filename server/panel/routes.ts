@@ -15,6 +15,7 @@ import { importPanelCsv } from './csvImport'
 import { createPlayerBody, listPlayersQuery, updatePlayerBody } from '../../shared/schemas/panel'
 import { ADMIN, EDITORS, LIMITS, STAFF } from '../../shared/constants'
 import { badRequest } from '../errors'
+import { refuseDeclaredOver } from '../http/uploadSize'
 
 export function panelRoutes(ctx: AppContext): RouteDef[] {
   // A panel CSV is small; keep it in memory so nothing is left on disk.
@@ -72,7 +73,9 @@ export function panelRoutes(ctx: AppContext): RouteDef[] {
       path: '/import',
       roles: ADMIN,
       accepts: 'multipart',
-      before: [csvUpload],
+      // Its own limits hold it to one small file; a request declaring more than any upload may
+      // carry is refused before it is read.
+      before: [refuseDeclaredOver(ctx.config.uploadBatchMaxMb), csvUpload],
       handler: async (req, res) => {
         if (!req.file) throw badRequest('Attach a CSV file in the field "file"')
         const text = req.file.buffer.toString('utf8')

@@ -4,12 +4,14 @@ import { findingsFigures } from './findings'
 import { clipAnalysisFigures } from './clipAnalysis'
 import { playerPageFigures } from './playerPage'
 import { submissionFigures } from './submissions'
+import { uploadMemoryFigures } from './uploadMemory'
 
 const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['findings', findingsFigures],
   ['audio', clipAnalysisFigures],
   ['player', playerPageFigures],
   ['submissions', submissionFigures],
+  ['upload', uploadMemoryFigures],
 ]
 
 const json = process.argv.includes('--json')

@@ -75,7 +75,8 @@ export async function submissionFigures(): Promise<Figure[]> {
       )
       await request(base).post('/api/player/consent').send({ token })
       await passHeadphoneCheck(base, token)
-      const plan = (await request(base).get('/api/player/plan').set('X-Invitation-Token', token)).body.plan
+      const plan = (await request(base).get('/api/player/plan').set('X-Invitation-Token', token))
+        .body.plan
       const keys = plan.attributes.map((a: { key: string }) => a.key)
       for (const trial of plan.trials)
         bodies.push({

@@ -109,7 +109,8 @@ beforeAll(async () => {
   for (const p of await invitedOf(t, sessionId)) {
     await request(t.app).post('/api/player/consent').send({ token: p.token }).expect(200)
     await passHeadphoneCheck(t.app, p.token)
-    const plan = (await request(t.app).get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
+    const plan = (await request(t.app).get('/api/player/plan').set('X-Invitation-Token', p.token))
+      .body.plan
     plans.push({ token: p.token, trials: plan.trials })
   }
   const trialsEach = plans[0].trials.length

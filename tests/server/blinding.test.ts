@@ -183,7 +183,9 @@ describe('blinding in the demo', () => {
       .where({ invitation_id: second.id })
       .count({ n: '*' })
       .then((r) => Number(r[0].n))
-    const state = await request(t.app).get('/api/player/state').set('X-Invitation-Token', second.token)
+    const state = await request(t.app)
+      .get('/api/player/state')
+      .set('X-Invitation-Token', second.token)
 
     expect(state.status).toBe(200)
     expect(state.body.answers).toHaveLength(answers)

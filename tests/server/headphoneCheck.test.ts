@@ -346,7 +346,8 @@ describe('answers stored before the check was required', () => {
     older = s.invited[1]
     for (const [i, p] of s.invited.entries()) {
       await takeHeadphoneCheck(t, p.token)
-      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
+      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body
+        .plan
       const values = Object.fromEntries(KEYS.map((k) => [k, VALUES[i]]))
       for (const trial of plan.trials)
         await api()
@@ -432,7 +433,8 @@ describe('findings and a failed headphone check', () => {
         clock.advance(30_000)
         await takeHeadphoneCheck(t, p.token, 4)
       }
-      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body.plan
+      const plan = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token)).body
+        .plan
       const values = Object.fromEntries(KEYS.map((k) => [k, VALUES[i]]))
       for (const trial of plan.trials)
         await api()

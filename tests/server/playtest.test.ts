@@ -117,7 +117,9 @@ describe('play-test logistics', () => {
     const { data, size } = rasterise(label.qrSvg)
     const decoded = jsQR(data, size, size)
     const token = /\/p\/([^?]+)\?set=/.exec(label.url)![1]
-    const landing = await request(t.app).get('/api/player/invitation').set('X-Invitation-Token', token)
+    const landing = await request(t.app)
+      .get('/api/player/invitation')
+      .set('X-Invitation-Token', token)
 
     expect(label.qrSvg).toMatch(/^<svg/)
     expect(label.url).toMatch(new RegExp(`^http://localhost:3000/p/[\\w.-]+\\?set=${label.code}$`))

@@ -40,8 +40,9 @@ async function answeredSession(format: 'rating' | 'pair' | 'triangle', close = t
   for (const [lean, p] of (await invitedOf(t, id)).entries()) {
     await api().post('/api/player/consent').send({ token: p.token }).expect(200)
     await passHeadphoneCheck(t.app, p.token)
-    const { plan } = (await api().get('/api/player/plan').set('X-Invitation-Token', p.token).expect(200))
-      .body
+    const { plan } = (
+      await api().get('/api/player/plan').set('X-Invitation-Token', p.token).expect(200)
+    ).body
     const keys = plan.attributes.map((a: { key: string }) => a.key)
     for (const trial of plan.trials)
       await api()
@@ -73,7 +74,8 @@ describe('the served record', () => {
     const records = await t.knex('served_plans').where({ session_id: id })
     expect(records).toHaveLength(invitations.length)
     const [first] = await invitedOf(t, id)
-    const { plan } = (await api().get('/api/player/plan').set('X-Invitation-Token', first.token)).body
+    const { plan } = (await api().get('/api/player/plan').set('X-Invitation-Token', first.token))
+      .body
     const record = JSON.parse(
       records.find((r: { invitation_id: number }) => r.invitation_id === invitations[0].id).trials,
     )

@@ -176,8 +176,9 @@ describe('the renditions of a matched set', () => {
     await t.settle()
     const [player] = await invitedOf(t, id)
     await request(t.app).post('/api/player/consent').send({ token: player.token }).expect(200)
-    const plan = (await request(t.app).get('/api/player/plan').set('X-Invitation-Token', player.token)).body
-      .plan
+    const plan = (
+      await request(t.app).get('/api/player/plan').set('X-Invitation-Token', player.token)
+    ).body.plan
     for (const trial of plan.trials as { clips: { audioUrl: string }[] }[]) {
       const bytes = await Promise.all(
         trial.clips.map(
