@@ -43,3 +43,25 @@ export function seriesTooltip(heading: string, rows: { param: TipParam; text: st
   const dot = (p: TipParam) => (typeof p.marker === 'string' ? p.marker : '')
   return [escapeHtml(heading), ...rows.map((r) => dot(r.param) + escapeHtml(r.text))].join('<br>')
 }
+
+/**
+ * The formatter of an axis tooltip over lines of values: the axis heading, then each shown
+ * series' name and value at that point. Nothing when every series is hidden from the legend.
+ */
+export function axisTooltip(
+  headings: () => string[],
+  series: () => { name: string; values: (number | null)[] }[],
+): (p: unknown) => string {
+  return (p) => {
+    const shown = tipParams(p)
+    if (!shown.length) return ''
+    const lines = series()
+    return seriesTooltip(
+      headings()[shown[0].dataIndex],
+      shown.map((param) => {
+        const s = lines[param.seriesIndex]
+        return { param, text: `${s.name}: ${tipNumber(s.values[param.dataIndex])}` }
+      }),
+    )
+  }
+}
