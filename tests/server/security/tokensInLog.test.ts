@@ -10,6 +10,9 @@ import { addPlayers, isoDay, openStudy, studyFixture } from '../sessionFixtures'
 import { giveAudio, invitedOf } from '../playerFixtures'
 import { walk } from '../blinding/walk'
 import { mediaFolders } from '../../../server/clips/storage'
+import { systemClock } from '../../../server/clock'
+import { seedDemoClips } from '../../../seeds/demo/clips'
+import { seedDemoSessions } from '../../../seeds/demo/sessions'
 
 // Whoever reads the server's log must not be able to act as anyone: no invitation link, no
 // set-password or reset link, no session cookie may appear in it (OWASP ASVS 4.0.3 §7.1.1, "the
@@ -52,8 +55,11 @@ beforeAll(async () => {
     mailbox: memoryMailbox(),
     logger: pino({ level: 'info' }, sink),
   })
-  mediaFolders(mediaDir)
-})
+  // The demo's story: its sessions, invitations and answers, made through the services.
+  await seedDemoClips({ knex: t.knex, folders: mediaFolders(mediaDir), clock: systemClock })
+  await seedDemoSessions(t.app.locals.ctx)
+  await t.settle()
+}, 180_000)
 afterAll(async () => {
   await t.close()
   rmSync(mediaDir, { recursive: true, force: true })
@@ -129,6 +135,13 @@ describe('the server log after a full walk', () => {
       await request(t.app).get('/api/player/state').query({ token: inv.token })
       await request(t.app).get(`/api/player/invitation?x=1&token=${inv.token}`)
     }
+    // Every invitation of the demo, walked the same way.
+    const demo: { id: number }[] = await t.knex('sessions').whereNot({ id }).select('id')
+    for (const s of demo)
+      for (const inv of await invitedOf(t, s.id)) {
+        issued.add(inv.token)
+        await walk(t.app, t.app.locals.tables, inv.token, () => ({ attempt: 1, responses: [] }))
+      }
     const mailed = t.mailer.sent.flatMap((m) =>
       [...m.text.matchAll(/\/p\/([\w.-]+)/g)].map((x) => x[1]),
     )
@@ -145,10 +158,13 @@ describe('the server log after a full walk', () => {
     // Nothing shaped like a JWT at all (RFC 7519 §3: three base64url parts).
     expect(log).not.toMatch(/eyJ[\w-]*\.[\w-]+\.[\w-]*/)
     expect(log).toContain('token=[redacted]')
-  })
+  }, 120_000)
 
   it('takes a player token from its header only, never from the query string', async () => {
-    const [inv] = await invitedOf(t, (await t.knex('sessions').first('id')).id)
+    const [inv] = await invitedOf(
+      t,
+      (await t.knex('sessions').where({ name: 'Log walk' }).first('id')).id,
+    )
     for (const path of ['/api/player/invitation', '/api/player/state', '/api/player/plan']) {
       const inQuery = await request(t.app).get(path).query({ token: inv.token })
       expect(inQuery.status, path).toBe(400)
