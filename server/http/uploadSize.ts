@@ -14,9 +14,10 @@ export function uploadTooLarge(maxMb: number): AppError {
 
 /**
  * Refuses a request whose declared length already passes the limit, before a byte of it is
- * read (RFC 9110 §15.5.14, 413 Content Too Large). The body is larger than its files, so a
- * request refused here would have been refused as its files arrived anyway. A request without a
- * length (chunked) goes on, to be counted as it streams.
+ * read (RFC 9110 §15.5.14, 413 Content Too Large). The body is its files plus a little of
+ * part headers and fields, so a batch within those few kilobytes of the cap may be refused here
+ * rather than as its files arrive: the cap guards memory and disk, it is not an exact quota. A
+ * request without a length (chunked) goes on, to be counted as it streams.
  */
 export function refuseDeclaredOver(maxMb: number): RequestHandler {
   const limit = megabytes(maxMb)
