@@ -14,3 +14,12 @@ export function newPasswordRule(owner: () => PasswordOwner): FormItemRule {
     },
   }
 }
+
+/** The "same password again" field: it must match the new password as typed. */
+export function samePasswordRule(password: () => string): FormItemRule {
+  return {
+    trigger: ['blur', 'input'],
+    validator: (_rule: FormItemRule, value: unknown) =>
+      value === password() ? true : new Error('The two passwords differ'),
+  }
+}

@@ -11,6 +11,7 @@ import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
 import { addPlayers, isoDay, openStudy, studyFixture } from '../server/sessionFixtures'
 import { answerFor, passHeadphoneCheck } from '../server/playerFixtures'
 import { round, type Figure } from './figure'
+import { waitForHealth } from './childServer'
 
 const PLAYERS = 500
 const PORT = 3917
@@ -42,7 +43,7 @@ export async function submissionFigures(): Promise<Figure[]> {
   const base = `http://127.0.0.1:${PORT}`
   const knex = createKnex(databaseFile)
   try {
-    await waitForHealth(base)
+    await waitForHealth(base, 200)
     const staff = request.agent(base)
     await staff
       .post('/api/auth/login')
@@ -135,16 +136,4 @@ export async function submissionFigures(): Promise<Figure[]> {
     await knex.destroy()
     rmSync(dir, { recursive: true, force: true })
   }
-}
-
-async function waitForHealth(base: string) {
-  for (let i = 0; i < 200; i++) {
-    const ok = await fetch(`${base}/api/health`).then(
-      (r) => r.ok,
-      () => false,
-    )
-    if (ok) return
-    await new Promise((r) => setTimeout(r, 100))
-  }
-  throw new Error('The server did not start')
 }

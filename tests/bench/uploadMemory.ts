@@ -7,6 +7,7 @@ import { encodeWav, synth } from '../../server/audio'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
 import { createKnex } from '../../server/db/knex'
 import { round, type Figure } from './figure'
+import { waitForHealth } from './childServer'
 
 const PORT = 3919
 const RATE = 48_000
@@ -115,16 +116,4 @@ export async function uploadMemoryFigures(): Promise<Figure[]> {
     await new Promise((r) => server.once('exit', r))
     rmSync(dir, { recursive: true, force: true })
   }
-}
-
-async function waitForHealth(base: string) {
-  for (let i = 0; i < 300; i++) {
-    const ok = await fetch(`${base}/api/health`).then(
-      (r) => r.ok,
-      () => false,
-    )
-    if (ok) return
-    await new Promise((r) => setTimeout(r, 100))
-  }
-  throw new Error('The server did not start')
 }
