@@ -8,6 +8,7 @@ import pino from 'pino'
 import { systemClock } from './clock'
 import type { AppContext, AppDeps } from './context'
 import { createOutbox } from './mail/outbox'
+import { createWorkerPool } from './workers/pool'
 import { authenticate } from './http/authenticate'
 import { errorHandler } from './http/errorHandler'
 import { redactUrl } from './http/redact'
@@ -89,6 +90,7 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
       config: deps.config,
       logger,
     }),
+    pool: deps.pool ?? createWorkerPool(deps.config.workerThreads),
   }
 
   const app = express() as unknown as RingdownApp

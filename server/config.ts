@@ -1,6 +1,7 @@
 import { randomBytes } from 'node:crypto'
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { dirname, resolve } from 'node:path'
+import { availableParallelism } from 'node:os'
 
 export interface Config {
   env: 'development' | 'production' | 'test'
@@ -8,6 +9,8 @@ export interface Config {
   /** Where links in e-mails point; defaults to the local server. */
   publicUrl: string
   databaseFile: string
+  /** SQLite's `synchronous` setting: FULL keeps every acknowledged write through a power cut. */
+  databaseSynchronous: 'FULL' | 'NORMAL'
   mediaDir: string
   /** Largest single uploaded recording, in MB. */
   uploadMaxMb: number
@@ -33,7 +36,25 @@ export interface Config {
     resetsPerHour: number
   }
   jsonLimit: string
-  mail: { maxAttempts: number; retryBaseMs: number; pollMs: number }
+  mail: {
+    /** Tries for a mail that belongs to no session (sign-in links, staff invitations); a
+     * session's mail is tried for as long as its session is open. */
+    maxAttempts: number
+    retryBaseMs: number
+    /** The longest wait between two tries, however many have failed. */
+    retryMaxMs: number
+    /** Connecting and the server's greeting each get this long before the try counts as failed. */
+    connectTimeoutMs: number
+    /** A whole SMTP conversation for one mail gets at most this long. */
+    sendTimeoutMs: number
+    pollMs: number
+  }
+  /** Threads for findings and clip analysis; 0 runs them on the main thread (tests). */
+  workerThreads: number
+  /** How often leftover upload parts, orphan originals and renditions without rows are removed. */
+  sweepMinutes: number
+  /** The longest SIGTERM waits for requests in flight before the process exits. */
+  shutdownGraceMs: number
 }
 
 const DEFAULT_DB = 'data/ringdown.sqlite'
@@ -81,6 +102,13 @@ function int(value: string | undefined, fallback: number, name: string): number 
   return n
 }
 
+function synchronousOf(value: string | undefined): Config['databaseSynchronous'] {
+  if (value === undefined || value === '') return 'FULL'
+  const v = value.toUpperCase()
+  if (v !== 'FULL' && v !== 'NORMAL') throw new Error('DATABASE_SYNCHRONOUS must be FULL or NORMAL')
+  return v
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const nodeEnv =
     env.NODE_ENV === 'production' ? 'production' : env.NODE_ENV === 'test' ? 'test' : 'development'
@@ -96,6 +124,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     port,
     publicUrl: (env.PUBLIC_URL || `http://localhost:${port}`).replace(/\/$/, ''),
     databaseFile,
+    databaseSynchronous: synchronousOf(env.DATABASE_SYNCHRONOUS),
     mediaDir: env.MEDIA_DIR || 'media',
     uploadMaxMb: int(env.UPLOAD_MAX_MB, 200, 'UPLOAD_MAX_MB'),
     uploadBatchMaxMb: int(env.UPLOAD_BATCH_MAX_MB, 1000, 'UPLOAD_BATCH_MAX_MB'),
@@ -121,8 +150,18 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     mail: {
       maxAttempts: int(env.MAIL_MAX_ATTEMPTS, 6, 'MAIL_MAX_ATTEMPTS'),
       retryBaseMs: int(env.MAIL_RETRY_BASE_MS, 30_000, 'MAIL_RETRY_BASE_MS'),
+      retryMaxMs: int(env.MAIL_RETRY_MAX_MS, 15 * 60_000, 'MAIL_RETRY_MAX_MS'),
+      connectTimeoutMs: int(env.MAIL_CONNECT_TIMEOUT_MS, 10_000, 'MAIL_CONNECT_TIMEOUT_MS'),
+      sendTimeoutMs: int(env.MAIL_SEND_TIMEOUT_MS, 30_000, 'MAIL_SEND_TIMEOUT_MS'),
       pollMs: int(env.MAIL_POLL_MS, 10_000, 'MAIL_POLL_MS'),
     },
+    workerThreads: int(
+      env.WORKER_THREADS,
+      Math.max(1, availableParallelism() - 1),
+      'WORKER_THREADS',
+    ),
+    sweepMinutes: int(env.SWEEP_MINUTES, 60, 'SWEEP_MINUTES'),
+    shutdownGraceMs: int(env.SHUTDOWN_GRACE_MS, 8_000, 'SHUTDOWN_GRACE_MS'),
   }
 }
 
@@ -133,6 +172,7 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
     port: 0,
     publicUrl: 'http://localhost:3000',
     databaseFile: ':memory:',
+    databaseSynchronous: 'FULL',
     mediaDir: 'media',
     uploadMaxMb: 200,
     uploadBatchMaxMb: 1000,
@@ -145,7 +185,17 @@ export function testConfig(overrides: Partial<Config> = {}): Config {
     accountThrottle: { windowMs: 15 * 60_000, maxFailures: 10 },
     mailLimits: { reminderGapMs: 12 * 3_600_000, sessionMailsPerHour: 600, resetsPerHour: 3 },
     jsonLimit: '100kb',
-    mail: { maxAttempts: 3, retryBaseMs: 1000, pollMs: 0 },
+    mail: {
+      maxAttempts: 3,
+      retryBaseMs: 1000,
+      retryMaxMs: 8000,
+      connectTimeoutMs: 2000,
+      sendTimeoutMs: 5000,
+      pollMs: 0,
+    },
+    workerThreads: 0,
+    sweepMinutes: 0,
+    shutdownGraceMs: 8_000,
     ...overrides,
   }
 }

@@ -20,6 +20,9 @@ export interface Outbox {
   deliverDue(): Promise<void>
   /** Resolves when delivery started by enqueue has finished (tests wait on it). */
   settle(): Promise<void>
+  /** Starts no more deliveries and gives the one in flight at most `graceMs` to finish; what
+   * has not gone out stays in the outbox for the next start. */
+  stop(graceMs: number): Promise<void>
   list(filter?: { status?: string }): Promise<MailItem[]>
   retry(id: number): Promise<boolean>
 }
@@ -49,6 +52,7 @@ export function createOutbox(deps: {
   const { knex, mailer, clock, config, logger } = deps
   let running: Promise<void> | null = null
   let again = false
+  let stopped = false
 
   async function deliverOnce(): Promise<void> {
     const now = clock.now().toISOString()
@@ -94,6 +98,7 @@ export function createOutbox(deps: {
   }
 
   function deliverDue(): Promise<void> {
+    if (stopped) return Promise.resolve()
     if (running) {
       again = true
       return running
@@ -102,7 +107,7 @@ export function createOutbox(deps: {
       do {
         again = false
         await deliverOnce()
-      } while (again)
+      } while (again && !stopped)
     })()
       .catch((err) => logger.error({ err }, 'outbox run failed'))
       .finally(() => {
@@ -129,6 +134,11 @@ export function createOutbox(deps: {
     deliverDue,
     async settle() {
       while (running) await running
+    },
+    async stop(graceMs) {
+      stopped = true
+      if (running)
+        await Promise.race([running, new Promise((r) => setTimeout(r, graceMs).unref())])
     },
     async list(filter = {}) {
       const q = knex<OutboxRow>('outbox').orderBy('id', 'desc').limit(500)
