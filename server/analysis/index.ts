@@ -68,7 +68,10 @@ export {
   type CorrelationResult,
 } from './correlation.ts'
 export {
+  correlateMeasures,
   objectiveVsPerceived,
+  perceivedMeans,
+  type PerceivedMeans,
   type ClipMeasure,
   type MeasureCorrelation,
   type ObjectiveOptions,

@@ -41,34 +41,82 @@ function averageBy<T>(items: readonly T[], group: (t: T) => string, value: (t: T
   return new Map([...sums].map(([k, s]) => [k, s.sum / s.count]))
 }
 
+/** Mean ratings by unit (clip or recipe, as text) and attribute (as text). */
+export type PerceivedMeans = Map<string, Map<string, number>>
+
+/**
+ * Per unit and attribute, the mean of player means, so a player who heard a clip twice does
+ * not count twice. Nested maps rather than joined keys: a large panel has a hundred thousand
+ * ratings, and building a key string for each cost more than the correlations.
+ */
+export function perceivedMeans(
+  ratings: readonly Rating[],
+  unitOf: (r: Rating) => Id | undefined,
+): PerceivedMeans {
+  const sums = new Map<string, Map<string, Map<Id, { sum: number; count: number }>>>()
+  for (const r of ratings) {
+    if (!Number.isFinite(r.value)) continue
+    const unit = String(unitOf(r))
+    let byAttribute = sums.get(unit)
+    if (!byAttribute) sums.set(unit, (byAttribute = new Map()))
+    const attribute = String(r.attribute)
+    let byPlayer = byAttribute.get(attribute)
+    if (!byPlayer) byAttribute.set(attribute, (byPlayer = new Map()))
+    const s = byPlayer.get(r.player)
+    if (s) {
+      s.sum += r.value
+      s.count++
+    } else byPlayer.set(r.player, { sum: r.value, count: 1 })
+  }
+  const out: PerceivedMeans = new Map()
+  for (const [unit, byAttribute] of sums) {
+    const means = new Map<string, number>()
+    for (const [attribute, byPlayer] of byAttribute) {
+      let total = 0
+      for (const s of byPlayer.values()) total += s.sum / s.count
+      means.set(attribute, total / byPlayer.size)
+    }
+    out.set(unit, means)
+  }
+  return out
+}
+
+const levelOf = (ratings: readonly Rating[], options: ObjectiveOptions) =>
+  options.level ?? (ratings.length > 0 && ratings.every((r) => r.clip != null) ? 'clip' : 'recipe')
+
+const unitFor =
+  (level: 'clip' | 'recipe') =>
+  (x: { clip?: Id; recipe: Id }): Id | undefined =>
+    level === 'clip' ? x.clip : x.recipe
+
 /** Spearman rho between each measure and each attribute's mean rating, across clips or recipes. */
 export function objectiveVsPerceived(
   measures: readonly ClipMeasure[],
   ratings: readonly Rating[],
   options: ObjectiveOptions = {},
 ): MeasureCorrelation[] {
-  const level =
-    options.level ??
-    (ratings.length > 0 && ratings.every((r) => r.clip != null) ? 'clip' : 'recipe')
-  const unit = (x: { clip?: Id; recipe: Id }) => String(level === 'clip' ? x.clip : x.recipe)
+  const level = levelOf(ratings, options)
+  const attributeIds = [...new Map(ratings.map((r) => [String(r.attribute), r.attribute])).values()]
+  return correlateMeasures(measures, perceivedMeans(ratings, unitFor(level)), attributeIds, level)
+}
+
+/**
+ * The correlations of objectiveVsPerceived from means already taken (the findings page draws
+ * the same means as points, and takes them once).
+ */
+export function correlateMeasures(
+  measures: readonly ClipMeasure[],
+  perceived: PerceivedMeans,
+  attributeIds: readonly Id[],
+  level: 'clip' | 'recipe',
+): MeasureCorrelation[] {
+  const unit = (x: ClipMeasure) => String(unitFor(level)(x))
   const SEP = '\u0000'
-  // Player means first, so a player who heard a clip twice does not count twice.
-  const playerMeans = averageBy(
-    ratings,
-    (r) => [unit(r), String(r.attribute), String(r.player)].join(SEP),
-    (r) => r.value,
-  )
-  const perceived = averageBy(
-    [...playerMeans],
-    ([k]) => k.split(SEP).slice(0, 2).join(SEP),
-    ([, v]) => v,
-  )
   const measured = averageBy(
     measures,
     (m) => [m.measure, unit(m)].join(SEP),
     (m) => m.value,
   )
-  const attributeIds = [...new Map(ratings.map((r) => [String(r.attribute), r.attribute])).values()]
   const measureNames = [...new Set(measures.map((m) => m.measure))]
   const units = [...new Set(measures.map(unit))]
 
@@ -79,7 +127,7 @@ export function objectiveVsPerceived(
       const y: number[] = []
       for (const u of units) {
         const m = measured.get([measure, u].join(SEP))
-        const p = perceived.get([u, String(attribute)].join(SEP))
+        const p = perceived.get(u)?.get(String(attribute))
         if (m !== undefined && p !== undefined) {
           x.push(m)
           y.push(p)

@@ -62,8 +62,6 @@ export interface ReliabilityResult {
   players: PlayerReliability[]
 }
 
-const key = (...parts: (Id | undefined)[]) => parts.map((p) => String(p ?? '')).join('\u0000')
-
 export function reliability(
   ratings: readonly Rating[],
   options: ReliabilityOptions = {},
@@ -73,43 +71,45 @@ export function reliability(
     maxMissShare = MAX_MISS_SHARE,
     minPairs = MIN_DUPLICATE_PAIRS,
   } = options
-  // Repeats of one item, in the order given (the order answered).
-  const repeats = new Map<string, { player: Id; values: number[] }>()
+  // Nested maps rather than joined keys: on a large panel, building a key string per rating
+  // cost more than the statistics. Ids are compared as text, as everywhere in the engine.
+  // Repeats of one item per player (recipe → item → attribute), in the order answered.
+  const repeats = new Map<Id, Map<string, Map<string, Map<string, number[]>>>>()
   // Cell means per player (recipe × attribute) and panel totals for the leave-one-out.
-  const cells = new Map<Id, Map<string, { attribute: Id; sum: number; count: number }>>()
-  const panel = new Map<string, { sum: number; count: number }>()
+  const cells = new Map<Id, Map<string, Map<string, Cell>>>()
   for (const r of ratings) {
     if (typeof r.value !== 'number' || !Number.isFinite(r.value)) continue
-    const itemKey = key(r.player, r.recipe, r.item ?? r.clip, r.attribute)
-    const item = repeats.get(itemKey) ?? { player: r.player, values: [] }
-    item.values.push(r.value)
-    repeats.set(itemKey, item)
-    const cellKey = key(r.recipe, r.attribute)
-    let playerCells = cells.get(r.player)
-    if (!playerCells) cells.set(r.player, (playerCells = new Map()))
-    const cell = playerCells.get(cellKey) ?? { attribute: r.attribute, sum: 0, count: 0 }
+    const recipe = String(r.recipe)
+    const attribute = String(r.attribute)
+    const byItem = child(child(repeats, r.player), recipe)
+    child(byItem, String(r.item ?? r.clip ?? ''), attribute, () => []).push(r.value)
+    const cell = child(child(cells, r.player), recipe, attribute, () => ({
+      attribute: r.attribute,
+      sum: 0,
+      count: 0,
+    }))
     cell.sum += r.value
     cell.count++
-    playerCells.set(cellKey, cell)
   }
-  for (const playerCells of cells.values()) {
-    for (const [cellKey, cell] of playerCells) {
-      const total = panel.get(cellKey) ?? { sum: 0, count: 0 }
-      total.sum += cell.sum / cell.count
-      total.count++
-      panel.set(cellKey, total)
-    }
-  }
+  const panel = new Map<string, Map<string, { sum: number; count: number }>>()
+  for (const playerCells of cells.values())
+    for (const [recipe, byAttribute] of playerCells)
+      for (const [attribute, cell] of byAttribute) {
+        const total = child(panel, recipe, attribute, () => ({ sum: 0, count: 0 }))
+        total.sum += cell.sum / cell.count
+        total.count++
+      }
 
   const pairsByPlayer = new Map<Id, [number, number][]>()
-  for (const { player, values } of repeats.values()) {
-    if (values.length < 2) continue
-    const list = pairsByPlayer.get(player) ?? []
-    // Every pair of repeats: with the usual two repeats that is one pair per item.
-    for (let i = 0; i < values.length; i++) {
-      for (let j = i + 1; j < values.length; j++) list.push([values[i], values[j]])
-    }
-    pairsByPlayer.set(player, list)
+  for (const [player, byRecipe] of repeats) {
+    const list: [number, number][] = []
+    for (const byItem of byRecipe.values())
+      for (const byAttribute of byItem.values())
+        for (const values of byAttribute.values())
+          // Every pair of repeats: with the usual two repeats that is one pair per item.
+          for (let i = 0; i < values.length; i++)
+            for (let j = i + 1; j < values.length; j++) list.push([values[i], values[j]])
+    if (list.length > 0) pairsByPlayer.set(player, list)
   }
 
   const players: PlayerReliability[] = []
@@ -143,23 +143,47 @@ export function reliability(
   return { rule: reliabilityRule(tolerance, maxMissShare, minPairs), players }
 }
 
+interface Cell {
+  attribute: Id
+  sum: number
+  count: number
+}
+
+/** The map under `key` in `m`, made empty (or by `make` at the last level) when missing. */
+function child<K, V>(m: Map<K, Map<string, V>>, key: K): Map<string, V>
+function child<V>(m: Map<string, Map<string, V>>, key: string, last: string, make: () => V): V
+function child(
+  m: Map<unknown, Map<string, unknown>>,
+  key: unknown,
+  last?: string,
+  make?: () => unknown,
+): unknown {
+  let inner = m.get(key)
+  if (!inner) m.set(key, (inner = new Map()))
+  if (last === undefined) return inner
+  let value = inner.get(last)
+  if (value === undefined) inner.set(last, (value = make!()))
+  return value
+}
+
 function leaveOneOut(
-  playerCells: Map<string, { attribute: Id; sum: number; count: number }>,
-  panel: Map<string, { sum: number; count: number }>,
+  playerCells: Map<string, Map<string, Cell>>,
+  panel: Map<string, Map<string, { sum: number; count: number }>>,
 ): { rho: number | null; cells: number } {
   // Group by attribute so each side can be centred: attributes sit at different heights on
   // the scale, and that offset alone would make any player look in tune with the panel.
   const byAttribute = new Map<Id, { own: number[]; rest: number[] }>()
-  for (const [cellKey, cell] of playerCells) {
-    const total = panel.get(cellKey)
-    if (!total || total.count < 2) continue
-    const own = cell.sum / cell.count
-    const rest = (total.sum - own) / (total.count - 1)
-    const group = byAttribute.get(cell.attribute) ?? { own: [], rest: [] }
-    group.own.push(own)
-    group.rest.push(rest)
-    byAttribute.set(cell.attribute, group)
-  }
+  for (const [recipe, cellsOfRecipe] of playerCells)
+    for (const [attributeKey, cell] of cellsOfRecipe) {
+      const total = panel.get(recipe)?.get(attributeKey)
+      if (!total || total.count < 2) continue
+      const own = cell.sum / cell.count
+      const rest = (total.sum - own) / (total.count - 1)
+      const group = byAttribute.get(cell.attribute) ?? { own: [], rest: [] }
+      group.own.push(own)
+      group.rest.push(rest)
+      byAttribute.set(cell.attribute, group)
+    }
   const own: number[] = []
   const rest: number[] = []
   for (const group of byAttribute.values()) {

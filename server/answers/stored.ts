@@ -73,7 +73,10 @@ export class UnreadableAnswer extends AppError {
 
 export function sameAnswer(payload: string, answer: GivenAnswer): boolean {
   const stored = knownShape(payload, null)
-  return stored !== null && JSON.stringify(stored) === JSON.stringify(canonicalAnswer(answer))
+  return (
+    stored !== null &&
+    JSON.stringify(canonicalAnswer(stored)) === JSON.stringify(canonicalAnswer(answer))
+  )
 }
 
 /**
@@ -93,6 +96,8 @@ export function readAnswer(
   return answer
 }
 
+/** The answer as stored, checked but not re-ordered: readers look values up by key, and on a
+ * large panel putting every answer's keys in order cost more than the statistics. */
 function knownShape(payload: string, trial: PlannedTrial | null): GivenAnswer | null {
   let data: unknown
   try {
@@ -103,7 +108,7 @@ function knownShape(payload: string, trial: PlannedTrial | null): GivenAnswer | 
   if (typeof data !== 'object' || data === null) return null
   const record = data as Record<string, unknown>
   const current = trialAnswer.safeParse('given' in record ? record.given : record)
-  if (current.success) return canonicalAnswer(current.data)
+  if (current.success) return current.data
   return trial ? olderAnswer(record, trial) : null
 }
 

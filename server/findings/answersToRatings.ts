@@ -56,15 +56,17 @@ export interface ResolvedAnswers {
   preferences: PreferenceAnswer[]
   more: MoreAnswer[]
   triangles: TriangleAnswer[]
-  rows: LongRow[]
+  /** The long-format rows, kept only for the answer export: the findings page never reads them,
+   * and on a large panel building them cost more than all the statistics. */
+  rows: LongRow[] | null
 }
 
-export const emptyResolved = (): ResolvedAnswers => ({
+export const emptyResolved = (withRows = true): ResolvedAnswers => ({
   ratings: [],
   preferences: [],
   more: [],
   triangles: [],
-  rows: [],
+  rows: withRows ? [] : null,
 })
 
 /** Appends one player's answers to `out`; `attributes` are the session's attribute keys. */

@@ -67,7 +67,12 @@ export async function recipeRefs(db: Knex, ids: number[]): Promise<RecipeRef[]> 
   })
 }
 
-export async function loadFindingsData(db: Knex, sessionId: number): Promise<FindingsData> {
+/** `rows`: also build the long-format rows of the answer export. */
+export async function loadFindingsData(
+  db: Knex,
+  sessionId: number,
+  options: { rows?: boolean } = {},
+): Promise<FindingsData> {
   const session = await loadSession(db, sessionId)
   const design = designOf(session)
   // Revoked invitations are left out: the organisers withdrew them, answers and all.
@@ -105,7 +110,18 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
             invitations.map((i) => i.invitation_id),
           )
           .orderBy(['invitation_id', 'trial_index'])
-          .select('id', 'invitation_id', 'trial_index', 'payload', 'answered_at')
+          // Only the player's own answer is read here (the served truth comes from the served
+          // record): SQLite cuts it out, so a large panel parses a third of the text. Older
+          // shapes without `given`, and text that is not JSON, come whole for readAnswer.
+          .select(
+            'id',
+            'invitation_id',
+            'trial_index',
+            db.raw(
+              "CASE WHEN json_valid(payload) THEN coalesce(json_extract(payload, '$.given'), payload) ELSE payload END AS payload",
+            ),
+            'answered_at',
+          )
   const byInvitation = new Map<number, AnswerRow[]>()
   for (const a of stored) {
     const list = byInvitation.get(a.invitation_id) ?? []
@@ -118,7 +134,7 @@ export async function loadFindingsData(db: Knex, sessionId: number): Promise<Fin
     byInvitation.set(a.invitation_id, list)
   }
 
-  const resolved = emptyResolved()
+  const resolved = emptyResolved(options.rows ?? false)
   const keys = design.attributes.map((a) => a.key)
   if (stored.length > 0) {
     // Each answer is read through what that player was served, as recorded at invitation.

@@ -33,6 +33,7 @@ export function answersCsv(data: FindingsData): string {
     'comment',
     'answered_at',
   ]
+  if (!data.resolved.rows) throw new Error('The answer export needs findings data loaded with rows')
   const rows = data.resolved.rows.map((r: LongRow) => {
     const p = player.get(String(r.player))
     return [

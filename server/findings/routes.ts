@@ -3,7 +3,7 @@ import type { AppContext } from '../context'
 import { EXCLUDERS, STAFF } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { actorOf } from '../http/authenticate'
-import { computeSessionFindings, getFindings } from './service'
+import { findingsReader } from './reader'
 import { excludePlayer, includePlayer } from './exclusions'
 import { loadFindingsData } from './data'
 import { answersCsv, exportFileName, tableCsv } from './exportCsv'
@@ -25,8 +25,12 @@ function sendCsv(res: Response, fileName: string, body: string) {
   res.send(body)
 }
 
+function sendJson(res: Response, body: string) {
+  res.type('application/json').send(body)
+}
+
 export function findingsRoutes(ctx: AppContext): RouteDef[] {
-  const recomputed = (id: number) => getFindings(ctx.knex, id)
+  const findings = findingsReader(ctx)
   return [
     route({
       method: 'get',
@@ -36,7 +40,7 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
       params: idParam,
       query: findingsQuery,
       handler: async (_req, res, { params, query }) => {
-        res.json(await getFindings(ctx.knex, params.id, query))
+        sendJson(res, await findings.json(params.id, query))
       },
     }),
     route({
@@ -48,7 +52,7 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
       body: excludePlayerBody,
       handler: async (req, res, { params, body }) => {
         await excludePlayer(ctx, params.id, body, actorOf(req))
-        res.json(await recomputed(params.id))
+        sendJson(res, await findings.json(params.id))
       },
     }),
     route({
@@ -60,7 +64,7 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
       body: includePlayerBody,
       handler: async (req, res, { params: { id, playerCode }, body }) => {
         await includePlayer(ctx, id, playerCode, body, actorOf(req))
-        res.json(await recomputed(id))
+        sendJson(res, await findings.json(id))
       },
     }),
     route({
@@ -73,7 +77,7 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
         sendCsv(
           res,
           exportFileName(id, 'answers'),
-          answersCsv(await loadFindingsData(ctx.knex, id)),
+          answersCsv(await loadFindingsData(ctx.knex, id, { rows: true })),
         )
       },
     }),
@@ -85,8 +89,7 @@ export function findingsRoutes(ctx: AppContext): RouteDef[] {
       params: exportTableParam,
       query: findingsQuery,
       handler: async (_req, res, { params: { id, table }, query }) => {
-        const { findings } = await computeSessionFindings(ctx.knex, id, query)
-        sendCsv(res, exportFileName(id, table), tableCsv(findings, table))
+        sendCsv(res, exportFileName(id, table), tableCsv(await findings.read(id, query), table))
       },
     }),
   ]

@@ -11,20 +11,12 @@ import { triangleFindings } from './triangle'
 import { reliabilityFindings } from './reliability'
 import { objectiveFindings } from './objective'
 import { clipMeasures, loadFindingsData, type FindingsData } from './data'
+import type { ResolvedAnswers } from './answersToRatings'
 import { clipIdsOfSet, designOf } from '../sessions/rows'
 
 export interface ComputedFindings {
   findings: SessionFindings
   data: FindingsData
-}
-
-/** Who may read these is the route's session rule (server/http/sessionAccess.ts), not ours. */
-export async function getFindings(
-  db: Knex,
-  sessionId: number,
-  group: Subgroup = {},
-): Promise<SessionFindings> {
-  return (await computeSessionFindings(db, sessionId, group)).findings
 }
 
 /** The whole findings page for one session and subgroup, computed afresh from the answers. */
@@ -36,17 +28,20 @@ export async function computeSessionFindings(
   const data = await loadFindingsData(db, sessionId)
   const { session, recipes, attributes } = data
   const players = data.players.filter((p) => inSubgroup(p, group))
-  const all = answersOf(data.resolved, new Set(players.map((p) => p.code)))
-  const kept = answersOf(
-    all,
-    new Set(players.filter((p) => p.exclusionReason === null).map((p) => p.code)),
-  )
+  // Copies only when someone is left out: on a large panel each copy is a hundred thousand rows.
+  const all =
+    players.length === data.players.length
+      ? data.resolved
+      : answersOf(data.resolved, new Set(players.map((p) => p.code)))
+  const counted = players.filter((p) => p.exclusionReason === null)
+  const kept =
+    counted.length === players.length ? all : answersOf(all, new Set(counted.map((p) => p.code)))
   const excluded = players.filter((p) => p.exclusionReason !== null).map((p) => p.code)
   const format = session.format
   const parts = new Set(formatOf(format).findings)
   const answering = {
-    readable: new Set(all.rows.map((r) => r.player)).size,
-    kept: new Set(kept.rows.map((r) => r.player)).size,
+    readable: answeringPlayers(all),
+    kept: answeringPlayers(kept),
   }
   const answersInGroup = players.reduce((sum, p) => sum + p.answered, 0)
 
@@ -84,6 +79,14 @@ export async function computeSessionFindings(
     provenance: await provenanceOf(db, data),
   }
   return { findings, data }
+}
+
+/** Players with at least one readable answer of any kind. */
+function answeringPlayers(r: ResolvedAnswers): number {
+  const players = new Set<unknown>()
+  for (const list of [r.ratings, r.preferences, r.more, r.triangles])
+    for (const x of list) players.add(x.player)
+  return players.size
 }
 
 /** One line for the page head when there is nothing, or too little, to compare. */

@@ -25,7 +25,7 @@ export function answersOf(r: ResolvedAnswers, players: ReadonlySet<Id>): Resolve
     preferences: keep(r.preferences),
     more: keep(r.more),
     triangles: keep(r.triangles),
-    rows: keep(r.rows),
+    rows: r.rows && keep(r.rows),
   }
 }
 

@@ -92,7 +92,7 @@ export const pairFormat: FormatModule<'pair'> = {
     const preferred = answer.preferred === null ? null : recipeOf(answer.preferred)
     if (preferred !== undefined) {
       out.preferences.push({ player, first, second, preferred })
-      out.rows.push({
+      out.rows?.push({
         ...common,
         attribute: 'preference',
         answerCode: answer.preferred,
@@ -103,7 +103,7 @@ export const pairFormat: FormatModule<'pair'> = {
       const more = recipeOf(code)
       if (!attributes.includes(attribute) || more === undefined) continue
       out.more.push({ player, attribute, first, second, more })
-      out.rows.push({ ...common, attribute, answerCode: code, answerRecipe: more })
+      out.rows?.push({ ...common, attribute, answerCode: code, answerRecipe: more })
     }
     return true
   },

@@ -78,7 +78,7 @@ export function collectSliders(
     const { recipe, clip, code, excerpt, comment } = rated
     const item = context.item || undefined
     out.ratings.push({ player: context.player, recipe, attribute, value, clip, item })
-    out.rows.push({
+    out.rows?.push({
       ...context,
       excerpt,
       attribute,

@@ -57,7 +57,7 @@ export const triangleFormat: FormatModule<'triangle'> = {
     if (!chosen) return false
     const correct = answer.odd === trial.samples[trial.odd].code
     out.triangles.push({ player: context.player, correct, repeat: trial.repeatOf !== null })
-    out.rows.push({
+    out.rows?.push({
       ...context,
       excerpt: trial.excerptKey,
       attribute: 'odd one out',

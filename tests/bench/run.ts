@@ -1,6 +1,7 @@
 // `npm run bench`: one line per figure, `name: value unit (target …)`; `-- --json` for JSON.
 import type { Figure } from './figure'
 import { findingsFigures } from './findings'
+import { findingsHttpFigures } from './findingsHttp'
 import { clipAnalysisFigures } from './clipAnalysis'
 import { playerPageFigures } from './playerPage'
 import { submissionFigures } from './submissions'
@@ -8,6 +9,7 @@ import { uploadMemoryFigures } from './uploadMemory'
 
 const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['findings', findingsFigures],
+  ['findings-http', findingsHttpFigures],
   ['audio', clipAnalysisFigures],
   ['player', playerPageFigures],
   ['submissions', submissionFigures],

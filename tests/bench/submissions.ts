@@ -5,111 +5,87 @@ import { join } from 'node:path'
 import autocannon from 'autocannon'
 import request from 'supertest'
 import { createKnex } from '../../server/db/knex'
-import { systemClock } from '../../server/clock'
-import { signInvitation } from '../../server/auth/invitationTokens'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
-import { addPlayers, isoDay, openStudy, studyFixture } from '../server/sessionFixtures'
-import { answerFor, passHeadphoneCheck } from '../server/playerFixtures'
 import { round, type Figure } from './figure'
 import { waitForHealth } from './childServer'
+import { prepareSaves, storedAnswers } from './playerSaves'
+import { startServer } from './serverProcess'
 
 const PLAYERS = 500
 const PORT = 3917
-const SECRET = 'bench-secret-bench-secret-bench-secret'
+const BARE_PORT = 3918
+const CONNECTIONS = 20
+
+type Bodies = { path: string; body: string }[]
+
+/** Sends every save once over 20 connections and reports what the load generator saw. */
+async function send(base: string, bodies: Bodies) {
+  let next = 0
+  return autocannon({
+    url: base,
+    connections: CONNECTIONS,
+    amount: bodies.length,
+    requests: [
+      {
+        method: 'PUT',
+        headers: { 'content-type': 'application/json' },
+        setupRequest: (req) => {
+          const b = bodies[next++ % bodies.length]
+          return { ...req, path: b.path, body: b.body }
+        },
+      },
+    ],
+  })
+}
+
+/** The same saves against a bare Express route in its own process: the yardstick. */
+async function bareRate(bodies: Bodies): Promise<number> {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'tests/bench/bareExpress.ts'], {
+    env: { ...process.env, PORT: String(BARE_PORT) },
+    stdio: ['ignore', 'ignore', 'inherit'],
+  })
+  try {
+    await waitForHealth(`http://127.0.0.1:${BARE_PORT}`, 200)
+    return (await send(`http://127.0.0.1:${BARE_PORT}`, bodies)).requests.average
+  } finally {
+    child.kill('SIGTERM')
+    await new Promise((r) => child.once('exit', r))
+  }
+}
 
 /**
  * Rating submissions on loopback: 500 players each saving every trial of a rating session,
  * sent by a load generator in this process to the real server in its own process, on a SQLite
  * file, as `npm start` runs it (request logs included). Every request must be acknowledged and
- * every answer must be in the database afterwards.
+ * every answer must be in the database afterwards. The same client then sends the same saves
+ * to a bare Express route, before and after, for the ratio.
  */
 export async function submissionFigures(): Promise<Figure[]> {
   const dir = mkdtempSync(join(tmpdir(), 'ringdown-bench-'))
   const databaseFile = join(dir, 'bench.sqlite')
-  const server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    env: {
-      ...process.env,
-      // The demo sessions and their audio are not wanted here (and would write into media/).
-      NODE_ENV: 'test',
-      PORT: String(PORT),
-      DATABASE_FILE: databaseFile,
-      MEDIA_DIR: join(dir, 'media'),
-      JWT_SECRET: SECRET,
-      RINGDOWN_API_ONLY: '1',
-      LOGIN_RATE_MAX: '100000',
-    },
-    stdio: ['ignore', 'ignore', 'inherit'],
+  const server = await startServer({
+    port: PORT,
+    databaseFile,
+    mediaDir: join(dir, 'media'),
   })
-  const base = `http://127.0.0.1:${PORT}`
   const knex = createKnex(databaseFile)
   try {
-    await waitForHealth(base, 200)
-    const staff = request.agent(base)
+    const staff = request.agent(server.base)
     await staff
       .post('/api/auth/login')
       .send({ email: 'developer@ringdown.test', password: DEMO_PASSWORD })
-    const { recipeIds, clipSets } = await studyFixture(knex, 3, 2, 'Bench')
-    const { id } = await openStudy(staff, {
-      name: 'Submission benchmark',
-      format: 'rating',
-      recipeIds,
-      clipSets,
-      duplicates: 1,
-      deadline: isoDay(new Date(), 7),
-    })
-    const playerIds = await addPlayers(knex, PLAYERS)
-    await staff.post(`/api/sessions/${id}/invitations`).send({ playerIds })
-    const invitations: { id: number; token_id: string }[] = await knex('invitations')
-      .where({ session_id: id })
-      .select('id', 'token_id')
-    const deadline = isoDay(new Date(), 7)
+    const { sessionId, bodies } = await prepareSaves(server.base, knex, staff, PLAYERS)
 
-    // Each player consents, passes the headphone check and fetches their plan, as the rating
-    // page does before answering; none of it is timed.
-    const bodies: { path: string; body: string }[] = []
-    for (const inv of invitations) {
-      const token = signInvitation(
-        SECRET,
-        systemClock,
-        { jti: inv.token_id, sub: inv.id },
-        deadline,
-      )
-      await request(base).post('/api/player/consent').send({ token })
-      await passHeadphoneCheck(base, token)
-      const plan = (await request(base).get('/api/player/plan').set('X-Invitation-Token', token))
-        .body.plan
-      const keys = plan.attributes.map((a: { key: string }) => a.key)
-      for (const trial of plan.trials)
-        bodies.push({
-          path: `/api/player/answers/${trial.index}`,
-          body: JSON.stringify({ token, answer: answerFor(trial, keys, inv.id) }),
-        })
-    }
+    const bareBefore = await bareRate(bodies)
+    const result = await send(server.base, bodies)
+    const bareAfter = await bareRate(bodies)
+    const bare = (bareBefore + bareAfter) / 2
 
-    let next = 0
-    const result = await autocannon({
-      url: base,
-      connections: 20,
-      amount: bodies.length,
-      requests: [
-        {
-          method: 'PUT',
-          headers: { 'content-type': 'application/json' },
-          setupRequest: (req) => {
-            const b = bodies[next++ % bodies.length]
-            return { ...req, path: b.path, body: b.body }
-          },
-        },
-      ],
-    })
-    const [{ n }] = (await knex('answers')
-      .join('invitations', 'invitations.id', 'answers.invitation_id')
-      .where('invitations.session_id', id)
-      .count({ n: '*' })) as { n: number }[]
-    const lost = bodies.length - Number(n) + result.non2xx + result.errors
+    const lost =
+      bodies.length - (await storedAnswers(knex, sessionId)) + result.non2xx + result.errors
     return [
       {
-        name: `rating submissions (${bodies.length} saves, 20 connections)`,
+        name: `rating submissions (${bodies.length} saves, ${CONNECTIONS} connections)`,
         value: round(result.requests.average, 0),
         unit: 'per second',
         target: '>= 1500',
@@ -123,6 +99,13 @@ export async function submissionFigures(): Promise<Figure[]> {
         better: 'lower',
       },
       {
+        name: 'rating submissions against a bare Express route (same client, same run)',
+        value: round((100 * result.requests.average) / bare, 0),
+        unit: `% (bare route ${round(bare, 0)} per second)`,
+        target: '>= 60',
+        better: 'higher',
+      },
+      {
         name: 'rating submissions lost or refused',
         value: lost,
         unit: 'answers',
@@ -131,8 +114,7 @@ export async function submissionFigures(): Promise<Figure[]> {
       },
     ]
   } finally {
-    server.kill('SIGTERM')
-    await new Promise((r) => server.once('exit', r))
+    await server.stop()
     await knex.destroy()
     rmSync(dir, { recursive: true, force: true })
   }

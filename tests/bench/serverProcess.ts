@@ -1,0 +1,56 @@
+import { spawn } from 'node:child_process'
+import { waitForHealth } from './childServer'
+
+export const BENCH_SECRET = 'bench-secret-bench-secret-bench-secret'
+
+export interface ServerProcess {
+  base: string
+  stop(): Promise<void>
+}
+
+/**
+ * The real server in its own process, as `npm start` runs it (request logs included), on the
+ * given database file; the demo sessions and their audio are not wanted in a benchmark.
+ */
+export async function startServer(options: {
+  port: number
+  databaseFile: string
+  mediaDir: string
+  env?: Record<string, string>
+}): Promise<ServerProcess> {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+    env: {
+      ...process.env,
+      NODE_ENV: 'test',
+      PORT: String(options.port),
+      DATABASE_FILE: options.databaseFile,
+      MEDIA_DIR: options.mediaDir,
+      JWT_SECRET: BENCH_SECRET,
+      RINGDOWN_API_ONLY: '1',
+      LOGIN_RATE_MAX: '100000',
+      ...options.env,
+    },
+    stdio: ['ignore', 'ignore', 'inherit'],
+  })
+  const base = `http://127.0.0.1:${options.port}`
+  const exited = new Promise((r) => child.once('exit', r))
+  try {
+    await waitForHealth(base, 300)
+  } catch (err) {
+    child.kill('SIGKILL')
+    throw err
+  }
+  return {
+    base,
+    async stop() {
+      child.kill('SIGTERM')
+      await exited
+    },
+  }
+}
+
+/** The p-th percentile (0–100) of some timings, nearest rank. */
+export function percentile(values: number[], p: number): number {
+  const sorted = [...values].sort((a, b) => a - b)
+  return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)] ?? NaN
+}
