@@ -1,6 +1,11 @@
 /* Clip measures set against perception: Spearman per measure and attribute, with its points. */
 import { CLIP_MEASURES, type MeasureEntry } from '../../shared/measures'
-import { objectiveVsPerceived, type ClipMeasure, type Rating } from '../analysis/index.ts'
+import {
+  correlateMeasures,
+  perceivedMeans,
+  type ClipMeasure,
+  type Rating,
+} from '../analysis/index.ts'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
 import type { ObjectiveRow } from '../../shared/schemas/findings'
 
@@ -28,8 +33,12 @@ export function objectiveFindings(
         measures.push({ clip: clip.id, recipe: clip.recipe_id, measure: m.name, value })
     }
   const clipRatings = ratings.filter((r) => typeof r.clip === 'number')
-  const engine = objectiveVsPerceived(measures, clipRatings, { level: 'clip' })
-  const perceived = clipMeans(clipRatings)
+  // One set of clip means serves both the correlations and the points drawn behind them.
+  const perceived = perceivedMeans(clipRatings, (r) => r.clip)
+  const attributeIds = [
+    ...new Map(clipRatings.map((r) => [String(r.attribute), r.attribute])).values(),
+  ]
+  const engine = correlateMeasures(measures, perceived, attributeIds, 'clip')
   const names = new Map(attributes.map((a) => [a.key, a.name]))
   const rows: ObjectiveRow[] = []
   for (const m of CORRELATED_MEASURES) {
@@ -37,7 +46,7 @@ export function objectiveFindings(
       const found = engine.find((e) => e.measure === m.name && e.attribute === a.key)
       const points = clips.flatMap((clip) => {
         const x = clip[m.column]
-        const y = perceived.get(`${clip.id}|${a.key}`)
+        const y = perceived.get(String(clip.id))?.get(a.key)
         return typeof x === 'number' && Number.isFinite(x) && y !== undefined
           ? [{ x, y, clipId: clip.id, recipeId: clip.recipe_id }]
           : []
@@ -56,25 +65,4 @@ export function objectiveFindings(
     }
   }
   return rows
-}
-
-/** Per clip and attribute, the mean of player means: the same y the engine correlates. */
-function clipMeans(ratings: Rating[]): Map<string, number> {
-  const perPlayer = new Map<string, { sum: number; n: number }>()
-  for (const r of ratings) {
-    const k = `${r.clip}|${r.attribute}|${r.player}`
-    const s = perPlayer.get(k) ?? { sum: 0, n: 0 }
-    s.sum += r.value
-    s.n++
-    perPlayer.set(k, s)
-  }
-  const perClip = new Map<string, { sum: number; n: number }>()
-  for (const [k, s] of perPlayer) {
-    const clipKey = k.slice(0, k.lastIndexOf('|'))
-    const c = perClip.get(clipKey) ?? { sum: 0, n: 0 }
-    c.sum += s.sum / s.n
-    c.n++
-    perClip.set(clipKey, c)
-  }
-  return new Map([...perClip].map(([k, c]) => [k, c.sum / c.n]))
 }
