@@ -16,6 +16,8 @@ import { sessionGuard } from './http/sessionAccess'
 import { sameOriginWrites } from './http/sameOrigin'
 import { notFound } from './errors'
 import { buildRouter, type RouteDef } from './http/routeTable'
+import { createHealth, healthRoutes } from './http/health'
+import { createMetrics, type Metrics } from './http/metrics'
 import { authRoutes } from './auth/index.ts'
 import { staffRoutes } from './staff/index.ts'
 import { panelRoutes } from './panel/index.ts'
@@ -36,21 +38,13 @@ export interface MountedTable {
 }
 
 /** Every route table with its mount point: the app mounts these and the role test walks them. */
-export function routeTables(ctx: AppContext): MountedTable[] {
+export function routeTables(
+  ctx: AppContext,
+  metrics: Metrics = createMetrics(ctx),
+): MountedTable[] {
   return [
-    {
-      prefix: '/api',
-      routes: [
-        {
-          method: 'get',
-          path: '/health',
-          roles: 'public',
-          handler: (_req, res) => {
-            res.json({ status: 'ok' })
-          },
-        },
-      ],
-    },
+    { prefix: '/api', routes: healthRoutes(createHealth(ctx)) },
+    { prefix: '/metrics', routes: metrics.routes() },
     { prefix: '/api/auth', routes: authRoutes(ctx) },
     { prefix: '/api/staff', routes: staffRoutes(ctx) },
     { prefix: '/api/panel', routes: panelRoutes(ctx) },
@@ -74,7 +68,13 @@ export interface RingdownApp extends Express {
   locals: Express['locals'] & { ctx: AppContext; tables: MountedTable[] }
 }
 
-export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownApp {
+export function createApp(
+  deps: AppDeps & {
+    serveClient?: boolean
+    /** Lets `/metrics` be read with this bearer token from anywhere, not only from loopback. */
+    metricsToken?: string
+  },
+): RingdownApp {
   const clock = deps.clock ?? systemClock
   const logger = deps.logger ?? pino({ level: deps.config.env === 'test' ? 'silent' : 'info' })
   const ctx: AppContext = {
@@ -96,6 +96,9 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
   const app = express() as unknown as RingdownApp
   app.disable('x-powered-by')
   app.set('trust proxy', 'loopback')
+  // First, so that the time of everything below is counted.
+  const metrics = createMetrics(ctx, { token: deps.metricsToken })
+  app.use(metrics.middleware)
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -135,9 +138,13 @@ export function createApp(deps: AppDeps & { serveClient?: boolean }): RingdownAp
   app.use('/api', express.json({ limit: deps.config.jsonLimit }), cookieParser())
   app.use('/api', authenticate(ctx))
 
-  const tables = routeTables(ctx)
+  const tables = routeTables(ctx, metrics)
   const guard = sessionGuard(ctx.knex)
-  for (const t of tables) app.use(t.prefix, buildRouter(t.routes, guard))
+  for (const t of tables) {
+    const router = buildRouter(t.routes, guard)
+    metrics.nameRoutes(t.prefix, router)
+    app.use(t.prefix, router)
+  }
   app.use('/api', (req, _res, next) =>
     next(notFound(`API route ${req.method} ${req.originalUrl.split('?')[0]}`)),
   )

@@ -12,6 +12,7 @@ const STATUS: Record<ErrorCode, number> = {
   unsupported_media_type: 415,
   invalid_token: 400,
   internal: 500,
+  unavailable: 503,
 }
 
 /** The one error type services throw; the error handler turns it into JSON. */
@@ -23,6 +24,8 @@ export class AppError extends Error {
     readonly extra: {
       fields?: Record<string, string[]>
       rows?: { row: number; errors: string[] }[]
+      /** A save over a newer revision: the one the row is at now. */
+      currentRevision?: number
     } = {},
   ) {
     super(message)
@@ -34,6 +37,14 @@ export const badRequest = (message: string) => new AppError('bad_request', messa
 export const notFound = (what = 'That') => new AppError('not_found', `${what} was not found`)
 export const conflict = (message: string, fields?: Record<string, string[]>) =>
   new AppError('conflict', message, { fields })
+/** A save over a newer revision than the form was loaded at: nothing was written. */
+export const staleRevision = (what: string, currentRevision: number) =>
+  new AppError(
+    'conflict',
+    `Someone saved this ${what} after you opened it, so your changes were not saved. ` +
+      'Reload to see their version, then make your changes again.',
+    { currentRevision },
+  )
 export const forbidden = (message = 'You do not have access to this') =>
   new AppError('forbidden', message)
 export const unauthenticated = (message = 'Please sign in') =>

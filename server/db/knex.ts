@@ -1,15 +1,33 @@
 import { mkdirSync } from 'node:fs'
+import { createRequire } from 'node:module'
 import { dirname } from 'node:path'
 import knexFactory, { type Knex } from 'knex'
 
+export interface KnexOptions {
+  /**
+   * SQLite's `synchronous` under WAL: FULL syncs the log at every commit, so an acknowledged
+   * write survives a power cut; NORMAL syncs only at checkpoints, safe against a crashed process
+   * but not against losing power. The server passes Config.databaseSynchronous.
+   */
+  synchronous?: 'FULL' | 'NORMAL'
+  /**
+   * A connection that only reads (the findings worker): its transactions begin DEFERRED, so a
+   * snapshot read never takes the write lock from the server's own connection, and SQLite
+   * refuses any write on it (`query_only`).
+   */
+  readOnly?: boolean
+}
+
 /**
  * One SQLite connection. WAL lets readers run beside the writer; the busy timeout makes a
- * second process (the knex CLI, a backup) wait instead of failing at once.
+ * second process (the knex CLI, a backup) wait instead of failing at once, and every
+ * transaction begins IMMEDIATE so that the wait applies to it (see ImmediateClient).
  */
-export function createKnex(file: string): Knex {
+export function createKnex(file: string, options: KnexOptions = {}): Knex {
+  const synchronous = options.synchronous ?? 'FULL'
   if (file !== ':memory:') mkdirSync(dirname(file), { recursive: true })
   return knexFactory({
-    client: 'better-sqlite3',
+    client: options.readOnly ? BetterSqlite3Client : ImmediateClient,
     connection: { filename: file },
     useNullAsDefault: true,
     pool: {
@@ -21,7 +39,8 @@ export function createKnex(file: string): Knex {
           if (file !== ':memory:') conn.pragma('journal_mode = WAL')
           conn.pragma('foreign_keys = ON')
           conn.pragma('busy_timeout = 5000')
-          conn.pragma('synchronous = NORMAL')
+          if (options.readOnly) conn.pragma('query_only = ON')
+          conn.pragma(`synchronous = ${synchronous}`)
           done(null)
         } catch (err) {
           done(err as Error)
@@ -31,6 +50,36 @@ export function createKnex(file: string): Knex {
     migrations: { directory: migrationsDir, extension: 'ts', loadExtensions: ['.ts'] },
     seeds: { directory: seedsDir, extension: 'ts', loadExtensions: ['.ts'] },
   })
+}
+
+// knex offers no option for how a transaction begins, but takes a client class; its SQLite
+// transaction has one `begin` method. These are knex's own modules (knex has no exports map);
+// tests/server/storageErrors.test.ts fails if an upgrade moves them or changes how they begin.
+const require = createRequire(import.meta.url)
+const BetterSqlite3Client = require('knex/lib/dialects/better-sqlite3') as typeof Knex.Client
+const SqliteTransaction = require('knex/lib/dialects/sqlite3/execution/sqlite-transaction') as new (
+  ...args: unknown[]
+) => { query(conn: unknown, sql: string): Promise<unknown> }
+
+/**
+ * A knex transaction that reads and then writes would begin DEFERRED and, when another process
+ * holds the write lock, get SQLITE_BUSY at its first write without waiting (a reader cannot turn
+ * writer while another writer holds the lock). BEGIN IMMEDIATE takes the write lock at once,
+ * where the busy timeout applies. With one connection in this process nothing here runs beside
+ * a transaction anyway, so read-only transactions lose nothing by taking the lock too; nested
+ * transactions are savepoints and are left alone. Connections of other threads that only read
+ are made with `readOnly` and keep knex's deferred begin.
+ */
+class ImmediateTransaction extends SqliteTransaction {
+  begin(conn: unknown) {
+    return this.query(conn, 'BEGIN IMMEDIATE;')
+  }
+}
+
+class ImmediateClient extends BetterSqlite3Client {
+  override transaction(...args: unknown[]) {
+    return new ImmediateTransaction(this, ...args) as unknown as Knex.Transaction
+  }
 }
 
 interface Connection {

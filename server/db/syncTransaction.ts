@@ -7,7 +7,8 @@ interface RawStatement {
 }
 interface RawConnection {
   prepare(sql: string): RawStatement
-  transaction<T>(fn: () => T): () => T
+  transaction<T>(fn: () => T): { immediate(): T }
+  pragma(source: string, options: { simple: true }): unknown
 }
 
 export interface SyncDb {
@@ -19,9 +20,32 @@ export interface SyncDb {
  * Runs `fn` as one SQLite transaction on knex's own connection, without a single await inside.
  * better-sqlite3 is synchronous, so this holds the only connection for the shortest possible
  * time; the busiest write path (saving answers) uses it. Throwing inside rolls everything back.
+ *
+ * It begins IMMEDIATE: the write lock is taken at BEGIN, where SQLite waits out the busy
+ * timeout for another process (a backup, the knex CLI) to finish. A deferred transaction that
+ * reads first and then writes gets SQLITE_BUSY at once instead, without waiting: SQLite cannot
+ * let a reader turn writer while another writer holds the lock.
+ *
+ * `busyTimeoutMs` shortens the wait for this one transaction (a health probe must not hold the
+ * only connection for the full timeout).
  */
-export async function syncTransaction<T>(knex: Knex, fn: (db: SyncDb) => T): Promise<T> {
-  return withConnection(knex, (conn, db) => conn.transaction(() => fn(db))())
+export async function syncTransaction<T>(
+  knex: Knex,
+  fn: (db: SyncDb) => T,
+  options: { busyTimeoutMs?: number } = {},
+): Promise<T> {
+  return withConnection(knex, (conn, db) => {
+    if (options.busyTimeoutMs === undefined) return conn.transaction(() => fn(db)).immediate()
+    const before = conn.pragma('busy_timeout', { simple: true })
+    conn.pragma(`busy_timeout = ${Math.max(0, Math.floor(options.busyTimeoutMs))}`, {
+      simple: true,
+    })
+    try {
+      return conn.transaction(() => fn(db)).immediate()
+    } finally {
+      conn.pragma(`busy_timeout = ${Number(before)}`, { simple: true })
+    }
+  })
 }
 
 /** Reads without a transaction, on the same terms. */

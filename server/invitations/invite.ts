@@ -32,7 +32,9 @@ const playerColumns = ['id', 'code', 'name', 'email', 'status'] as const
  * Invites each chosen player once: a player already invited keeps the invitation (and the
  * plan) they have, so inviting twice, or two people inviting at once, yields one invitation.
  * A call whose new invitations would pass the session's hourly mail cap is refused whole, so
- * no one is left wondering which of the chosen players got a mail.
+ * no one is left wondering which of the chosen players got a mail. The answer counts the mails
+ * queued, not sent: they go out as the mail server takes them (the invitations list says which
+ * still wait).
  */
 export async function invitePlayers(
   ctx: AppContext,
@@ -79,6 +81,7 @@ export async function invitePlayers(
     let nextIndex = max === null ? 0 : Number(max) + 1
     const trialCount = await trialCountOf(trx, session)
     let created = 0
+    let mailsQueued = 0
     // Plans are dealt in invitation order, so balanced blocks fill up from the first player.
     for (const id of ids) {
       if (existing.has(id)) continue
@@ -93,10 +96,13 @@ export async function invitePlayers(
       })
       const inv = await loadInvitation(trx, invId as number)
       await fixServedPlans(trx, session, [inv], now)
-      await queueInvitationMail(ctx, trx, 'invitation', inv, session, player, {
-        answered: 0,
-        trialCount,
-      })
+      if (
+        await queueInvitationMail(ctx, trx, 'invitation', inv, session, player, {
+          answered: 0,
+          trialCount,
+        })
+      )
+        mailsQueued++
       created++
     }
     if (created > 0)
@@ -106,7 +112,7 @@ export async function invitePlayers(
         targetId: sessionId,
         details: { created, existing: existing.size },
       })
-    return { created, existing: existing.size }
+    return { created, existing: existing.size, mailsQueued }
   })
   void ctx.outbox.deliverDue()
   return result

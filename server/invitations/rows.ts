@@ -113,6 +113,7 @@ export function invitationUrl(ctx: AppContext, inv: InvitationDbRow, session: Se
 /**
  * Queues the personal mail inside the caller's transaction; the link is signed afresh. Each mail
  * counts against the session's hourly cap, which the caller checked in the same transaction.
+ * Says whether a mail was queued (a player without an address gets none).
  */
 export async function queueInvitationMail(
   ctx: AppContext,
@@ -122,8 +123,8 @@ export async function queueInvitationMail(
   session: SessionRow,
   player: InvitedPlayer,
   progress: { answered: number; trialCount: number },
-): Promise<void> {
-  if (!player.email) return
+): Promise<boolean> {
+  if (!player.email) return false
   const mail = invitationMail({
     kind,
     firstName: firstNameOf(player.name),
@@ -134,13 +135,18 @@ export async function queueInvitationMail(
     url: invitationUrl(ctx, inv, session),
     ...progress,
   })
+  // Tied to its session and invitation: it waits for the mail server for as long as the
+  // session is open, and the invitations list shows where it stands.
   await ctx.outbox.enqueue(
     {
       to: player.email,
       kind: kind === 'reminder' ? 'session_reminder' : 'session_invitation',
+      sessionId: session.id,
+      invitationId: inv.id,
       ...mail,
     },
     trx,
   )
   await logSessionMail(trx, session.id, kind, ctx.clock.now())
+  return true
 }

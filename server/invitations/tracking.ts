@@ -1,6 +1,6 @@
 /*
- * Following a session's invitations: the list with each player's progress, and one invitation
- * with what the mail and the row about it need.
+ * Following a session's invitations: the list with each player's progress and mail, and one
+ * invitation with what the mail and the row about it need.
  */
 import type { Knex } from 'knex'
 import type { AppContext } from '../context'
@@ -13,6 +13,7 @@ import {
   type InvitationDbRow,
   type InvitedPlayer,
 } from './rows'
+import { invitationMailState, sessionMailStates } from './mailState'
 import {
   checkRows,
   hasHeadphoneCheck,
@@ -35,7 +36,10 @@ function checkState(
   return record?.status ?? 'not_done'
 }
 
-/** The session's invitations in player order; each says when its next reminder may go. */
+/**
+ * The session's invitations in player order; each says when its next reminder may go and where
+ * its latest mail stands.
+ */
 export async function listInvitations(
   ctx: AppContext,
   sessionId: number,
@@ -56,6 +60,7 @@ export async function listInvitations(
   )
   const trialCount = await trialCountOf(knex, session)
   const checks = await sessionHeadphoneRecords(knex, sessionId)
+  const mails = await sessionMailStates(knex, sessionId)
   return rows.map((r) => ({
     ...toInvitationRow(
       r,
@@ -70,6 +75,7 @@ export async function listInvitations(
       },
     ),
     headphoneCheck: checkState(session.format, checks.get(r.id)),
+    mail: mails.get(r.id) ?? null,
   }))
 }
 
@@ -96,5 +102,6 @@ export async function rowOf(ctx: AppContext, id: number): Promise<InvitationRow>
       reminderGapMs: ctx.config.mailLimits.reminderGapMs,
     }),
     headphoneCheck: checkState(session.format, recordOf(await checkRows(ctx.knex, inv.id))),
+    mail: await invitationMailState(ctx.knex, inv.id),
   }
 }

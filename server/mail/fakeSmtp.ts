@@ -23,7 +23,10 @@ function addresses(a: AddressObject | AddressObject[] | undefined): string {
 
 /**
  * A local SMTP server that accepts everything and keeps it in memory, so development and tests
- * exercise the real SMTP path without sending mail anywhere.
+ * exercise the real SMTP path without sending mail anywhere. A message whose Message-ID it
+ * already holds is accepted and not kept again, as a receiving side that recognises repeats
+ * would do: the outbox sends a mail again with the same id when it cannot know whether an
+ * earlier try was taken (a crash mid-send, a timeout after the final dot).
  */
 export function startFakeSmtp(port = 0, host = '127.0.0.1'): Promise<FakeSmtp> {
   const messages: CaughtMail[] = []
@@ -35,8 +38,11 @@ export function startFakeSmtp(port = 0, host = '127.0.0.1'): Promise<FakeSmtp> {
     logger: false,
     onData(stream, _session, callback) {
       simpleParser(stream).then((m) => {
+        const messageId = m.messageId ?? null
+        if (messageId && messages.some((x) => x.messageId === messageId)) return callback()
         messages.unshift({
           id: nextId++,
+          messageId,
           receivedAt: new Date().toISOString(),
           from: addresses(m.from),
           to: addresses(m.to),

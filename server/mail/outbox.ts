@@ -1,9 +1,33 @@
+/*
+ * The outbox: every mail is stored first (inside the change that caused it) and handed to SMTP
+ * by delivery runs. The rules, each in its own file:
+ * - claims.ts: a run claims a mail before talking to SMTP, so no mail is sent twice, and mail
+ *   left 'sending' by a process that died goes again with the same Message-ID;
+ * - retryRule.ts: failed tries wait with capped doubling; a session's mail waits for as long as
+ *   its session is open, other mail gives up after Config.mail.maxAttempts;
+ * - sessionMail.ts: mail of a session that is over ends as failed with the reason;
+ * - transport.ts: short timeouts on every try.
+ */
 import type { Knex } from 'knex'
 import type { Logger } from 'pino'
 import type { Clock } from '../clock'
 import type { Config } from '../config'
+import { conflict } from '../errors'
 import type { Mailer } from './transport'
-import type { MailItem } from '../../shared/schemas/audit'
+import type { MailItem, MailStatus } from '../../shared/schemas/audit'
+import { messageIdHost, newMessageId } from './messageId'
+import { givesUp, isServerTrouble, retryWaitMs } from './retryRule'
+import { endMailOfEndedSessions, sessionEndReason } from './sessionMail'
+import {
+  claimMail,
+  dueMail,
+  markFailed,
+  markSent,
+  putBack,
+  returnLeftClaims,
+  type Claim,
+} from './claims'
+import { LISTED_COLUMNS, toMailItem, type ListedRow } from './rows'
 
 export interface QueuedMail {
   to: string
@@ -11,6 +35,10 @@ export interface QueuedMail {
   text: string
   html: string
   kind: string
+  /** The session the mail belongs to: it is then tried for as long as the session is open. */
+  sessionId?: number
+  /** The invitation it is for, so the invitations list can say where its mail stands. */
+  invitationId?: number
 }
 
 export interface Outbox {
@@ -20,26 +48,37 @@ export interface Outbox {
   deliverDue(): Promise<void>
   /** Resolves when delivery started by enqueue has finished (tests wait on it). */
   settle(): Promise<void>
-  /** Starts no more deliveries and gives the one in flight at most `graceMs` to finish; what
-   * has not gone out stays in the outbox for the next start. */
+  /** Starts no more deliveries and gives the one in flight at most `graceMs` to finish, then
+   * ends its SMTP conversation; what has not gone out waits in the outbox for the next start. */
   stop(graceMs: number): Promise<void>
-  list(filter?: { status?: string }): Promise<MailItem[]>
+  list(filter?: { status?: MailStatus }): Promise<MailItem[]>
+  /** Makes a failed or waiting mail due now with its tries counted afresh; false if none. */
   retry(id: number): Promise<boolean>
 }
 
-interface OutboxRow {
-  id: number
-  to: string
-  subject: string
-  text: string
-  html: string
-  kind: string
-  status: string
-  attempts: number
-  last_error: string | null
-  next_attempt_at: string | null
-  created_at: string
-  sent_at: string | null
+/** Mails read per query; a run goes on to the next batch while the server answers. */
+const BATCH = 50
+
+class SendTimeout extends Error {
+  constructor(ms: number) {
+    super(`The mail server did not take the mail within ${ms / 1000} s`)
+    this.name = 'SendTimeout'
+  }
+}
+
+class Stopping extends Error {
+  constructor() {
+    super('The outbox is stopping')
+    this.name = 'Stopping'
+  }
+}
+
+/** Rejects with the signal's reason once it aborts. */
+function whenAborted(signal: AbortSignal): Promise<never> {
+  return new Promise((_resolve, reject) => {
+    if (signal.aborted) reject(signal.reason)
+    else signal.addEventListener('abort', () => reject(signal.reason), { once: true })
+  })
 }
 
 export function createOutbox(deps: {
@@ -50,51 +89,97 @@ export function createOutbox(deps: {
   logger: Logger
 }): Outbox {
   const { knex, mailer, clock, config, logger } = deps
+  const { maxAttempts, retryBaseMs, retryMaxMs, connectTimeoutMs } = config.mail
+  // 0 would cut every try off at once; it falls back to the default bound.
+  const sendTimeoutMs = config.mail.sendTimeoutMs || 30_000
+  const host = messageIdHost(config.mailFrom)
+  // Longer than any live try can take (each is cut at sendTimeoutMs), so a claim older than
+  // this belongs to a process that died.
+  const claimLeaseMs = Math.max(2 * sendTimeoutMs, 60_000)
+  const stopping = new AbortController()
   let running: Promise<void> | null = null
   let again = false
   let stopped = false
 
-  async function deliverOnce(): Promise<void> {
-    const now = clock.now().toISOString()
-    const due: OutboxRow[] = await knex('outbox')
-      .where({ status: 'pending' })
-      .andWhere((q) => q.whereNull('next_attempt_at').orWhere('next_attempt_at', '<=', now))
-      .orderBy('id')
-      .limit(50)
-    for (const row of due) {
-      try {
-        await mailer.send({
-          from: config.mailFrom,
-          to: row.to,
-          subject: row.subject,
-          text: row.text,
-          html: row.html,
-        })
-        await knex('outbox')
-          .where({ id: row.id })
-          .update({
-            status: 'sent',
-            attempts: row.attempts + 1,
-            sent_at: clock.now().toISOString(),
-            last_error: null,
-            next_attempt_at: null,
-          })
-      } catch (err) {
-        const attempts = row.attempts + 1
-        const failed = attempts >= config.mail.maxAttempts
-        // Exponential back-off so a mail server that is down for an hour is not hammered.
-        const wait = config.mail.retryBaseMs * 2 ** (attempts - 1)
-        await knex('outbox')
-          .where({ id: row.id })
-          .update({
-            status: failed ? 'failed' : 'pending',
-            attempts,
-            last_error: String((err as Error).message ?? err).slice(0, 500),
-            next_attempt_at: failed ? null : new Date(clock.now().getTime() + wait).toISOString(),
-          })
-        logger.warn({ mailId: row.id, attempts, failed }, 'mail delivery failed')
-      }
+  /**
+   * One SMTP conversation, ended at sendTimeoutMs or when the outbox stops, even with a mailer
+   * that ignores the signal: the run never waits longer than that for one mail.
+   */
+  async function sendWithin(claim: Claim): Promise<void> {
+    const attempt = new AbortController()
+    const timer = setTimeout(() => attempt.abort(new SendTimeout(sendTimeoutMs)), sendTimeoutMs)
+    const onStop = () => attempt.abort(new Stopping())
+    if (stopping.signal.aborted) onStop()
+    else stopping.signal.addEventListener('abort', onStop, { once: true })
+    try {
+      await Promise.race([
+        mailer.send(
+          {
+            from: config.mailFrom,
+            to: claim.row.to,
+            subject: claim.row.subject,
+            text: claim.row.text,
+            html: claim.row.html,
+            messageId: claim.messageId,
+          },
+          { signal: attempt.signal, timeouts: { connectTimeoutMs, sendTimeoutMs } },
+        ),
+        whenAborted(attempt.signal),
+      ])
+    } catch (err) {
+      // Whichever rejected first, an abort is reported by its reason (timeout or stopping).
+      throw attempt.signal.aborted ? attempt.signal.reason : err
+    } finally {
+      clearTimeout(timer)
+      stopping.signal.removeEventListener('abort', onStop)
     }
+  }
+
+  /** One try of one claimed mail; says whether the run should go on. */
+  async function tryOne(claim: Claim): Promise<'go_on' | 'wait_for_next_tick'> {
+    const { row, attempts } = claim
+    try {
+      await sendWithin(claim)
+    } catch (err) {
+      if (err instanceof Stopping) {
+        await putBack(knex, row.id, clock.now())
+        return 'wait_for_next_tick'
+      }
+      const failed = givesUp(row.session_id, attempts, maxAttempts)
+      const wait = retryWaitMs(attempts, retryBaseMs, retryMaxMs)
+      const message = String((err as Error)?.message ?? err)
+      await markFailed(
+        knex,
+        row.id,
+        message,
+        failed ? null : new Date(clock.now().getTime() + wait),
+      )
+      logger.warn({ mailId: row.id, attempts, failed, err: message }, 'mail delivery failed')
+      return isServerTrouble(err) ? 'wait_for_next_tick' : 'go_on'
+    }
+    await markSent(knex, row.id, clock.now())
+    return 'go_on'
+  }
+
+  /** One batch; 'more' when a full batch went and others may be due. */
+  async function deliverBatch(): Promise<'done' | 'more' | 'wait_for_next_tick'> {
+    const now = clock.now()
+    await returnLeftClaims(knex, now, claimLeaseMs)
+    await endMailOfEndedSessions(knex, now)
+    const due = await dueMail(knex, now, BATCH)
+    let tried = 0
+    for (const row of due) {
+      if (stopped) return 'wait_for_next_tick'
+      const claim = await claimMail(knex, row, clock.now(), host)
+      if (!claim) continue
+      tried++
+      // After a failure to reach the server the rest wait for the next tick instead of each
+      // waiting out the same timeout; they keep their place and their count of tries.
+      if ((await tryOne(claim)) === 'wait_for_next_tick') return 'wait_for_next_tick'
+    }
+    // Another batch only when this one moved something: rows that could not be claimed would
+    // be read again and again.
+    return due.length === BATCH && tried > 0 ? 'more' : 'done'
   }
 
   function deliverDue(): Promise<void> {
@@ -104,10 +189,12 @@ export function createOutbox(deps: {
       return running
     }
     running = (async () => {
+      let end: Awaited<ReturnType<typeof deliverBatch>>
       do {
         again = false
-        await deliverOnce()
-      } while (again && !stopped)
+        end = await deliverBatch()
+      } while ((end === 'more' || (end === 'done' && again)) && !stopped)
+      again = false
     })()
       .catch((err) => logger.error({ err }, 'outbox run failed'))
       .finally(() => {
@@ -118,7 +205,8 @@ export function createOutbox(deps: {
 
   return {
     async enqueue(mail, trx) {
-      const [id] = await (trx ?? knex)('outbox').insert({
+      const db = trx ?? knex
+      const [id] = (await db('outbox').insert({
         to: mail.to,
         subject: mail.subject,
         text: mail.text,
@@ -126,10 +214,16 @@ export function createOutbox(deps: {
         kind: mail.kind,
         status: 'pending',
         created_at: clock.now().toISOString(),
-      })
+        session_id: mail.sessionId ?? null,
+        invitation_id: mail.invitationId ?? null,
+      })) as number[]
+      // The id is fixed here, before any try, and is repeated on every try of this mail.
+      await db('outbox')
+        .where({ id })
+        .update({ message_id: newMessageId(id, host) })
       // Delivery waits for the caller's transaction to commit: a rolled-back change sends nothing.
       if (!trx) void deliverDue()
-      return id as number
+      return id
     },
     deliverDue,
     async settle() {
@@ -137,26 +231,43 @@ export function createOutbox(deps: {
     },
     async stop(graceMs) {
       stopped = true
-      if (running)
-        await Promise.race([running, new Promise((r) => setTimeout(r, graceMs).unref())])
+      again = false
+      if (!running) return
+      const inFlight = running
+      let timer: NodeJS.Timeout | undefined
+      const finished = await Promise.race([
+        inFlight.then(() => true),
+        new Promise<false>((r) => (timer = setTimeout(() => r(false), graceMs))),
+      ])
+      clearTimeout(timer)
+      if (finished) return
+      // Past the grace: end the conversation; the mail goes back to waiting (claims.ts).
+      stopping.abort()
+      await inFlight
     },
     async list(filter = {}) {
-      const q = knex<OutboxRow>('outbox').orderBy('id', 'desc').limit(500)
+      const q = knex('outbox')
+        .orderBy('id', 'desc')
+        .limit(500)
+        .select(...LISTED_COLUMNS)
       if (filter.status) q.where({ status: filter.status })
-      const rows: OutboxRow[] = await q
-      return rows.map((r) => ({
-        id: r.id,
-        to: r.to,
-        subject: r.subject,
-        status: r.status as MailItem['status'],
-        attempts: r.attempts,
-        lastError: r.last_error,
-        createdAt: r.created_at,
-        sentAt: r.sent_at,
-        nextAttemptAt: r.next_attempt_at,
-      }))
+      const rows: ListedRow[] = await q
+      return rows.map((r) => toMailItem(r, maxAttempts))
     },
     async retry(id) {
+      const row: { status: string; session_id: number | null } | undefined = await knex('outbox')
+        .where({ id })
+        .first('status', 'session_id')
+      if (!row || (row.status !== 'failed' && row.status !== 'pending')) return false
+      if (row.session_id !== null) {
+        const session: { status: string; deadline: string } | undefined = await knex('sessions')
+          .where({ id: row.session_id })
+          .first('status', 'deadline')
+        if (sessionEndReason(session, clock.now()))
+          throw conflict(
+            'This mail belongs to a session that takes no more mail (closed, or past its deadline), so it cannot be sent again',
+          )
+      }
       const n = await knex('outbox')
         .where({ id })
         .whereIn('status', ['failed', 'pending'])

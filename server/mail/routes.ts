@@ -1,13 +1,11 @@
-import { z } from 'zod'
 import type { AppContext } from '../context'
 import { ADMIN } from '../../shared/constants'
 import { route, type RouteDef } from '../http/routeTable'
 import { notFound } from '../errors'
 import { idParam } from '../../shared/schemas/common'
+import { outboxQuery } from '../../shared/schemas/audit'
 import { actorOf } from '../http/authenticate'
 import { recordAudit } from '../audit/service'
-
-const outboxQuery = z.object({ status: z.enum(['pending', 'sent', 'failed']).optional() })
 
 export function mailRoutes(ctx: AppContext): RouteDef[] {
   const routes: RouteDef[] = [
@@ -26,7 +24,7 @@ export function mailRoutes(ctx: AppContext): RouteDef[] {
       roles: ADMIN,
       params: idParam,
       handler: async (req, res, { params: { id } }) => {
-        if (!(await ctx.outbox.retry(id))) throw notFound('Mail waiting to be sent')
+        if (!(await ctx.outbox.retry(id))) throw notFound('A waiting or failed mail with this id')
         await recordAudit(ctx.knex, ctx.clock.now(), actorOf(req), {
           action: 'mail.retried',
           targetType: 'mail',

@@ -12,7 +12,7 @@ const connections = new Map<string, Knex>()
 function connectionFor(databaseFile: string): Knex {
   let knex = connections.get(databaseFile)
   if (!knex) {
-    knex = createKnex(databaseFile)
+    knex = createKnex(databaseFile, { readOnly: true })
     connections.set(databaseFile, knex)
   }
   return knex

@@ -1,6 +1,7 @@
 import { isMainThread } from 'node:worker_threads'
 import workerpool from 'workerpool'
 import { findingsTask } from './findingsTask'
+import { measureClipTask, renderSetTask } from './clipTasks'
 
 /**
  * Everything the worker threads can be asked to do, by name. Each task takes and returns plain
@@ -8,9 +9,12 @@ import { findingsTask } from './findingsTask'
  */
 export const tasks = {
   findings: findingsTask,
+  measureClip: measureClipTask,
+  renderSet: renderSetTask,
 }
 
 export type Tasks = typeof tasks
 export type TaskName = keyof Tasks
 
-if (!isMainThread) workerpool.worker(tasks as unknown as Record<string, (...a: unknown[]) => unknown>)
+if (!isMainThread)
+  workerpool.worker(tasks as unknown as Record<string, (...a: unknown[]) => unknown>)

@@ -23,20 +23,39 @@ export interface AuditEntry {
   ip: string | null
 }
 
+/**
+ * Where a mail in the outbox stands: 'pending' waits for the mail server (a first try, or the
+ * next try after a failure); 'sending' is being handed over right now; 'sent' was taken by the
+ * mail server; 'failed' will not be tried again on its own (the reason is in lastError).
+ */
+export const MAIL_STATUSES = ['pending', 'sending', 'sent', 'failed'] as const
+export type MailStatus = (typeof MAIL_STATUSES)[number]
+
+export const outboxQuery = z.object({ status: z.enum(MAIL_STATUSES).optional() })
+
 export interface MailItem {
   id: number
   to: string
   subject: string
-  status: 'pending' | 'sent' | 'failed'
+  /** What the mail is: session_invitation, session_reminder, staff_invite, password_reset, … */
+  kind: string
+  status: MailStatus
   attempts: number
+  /** Tries before a mail of no session is given up; null for a session's mail, which is tried
+   * for as long as its session is open. */
+  maxAttempts: number | null
   lastError: string | null
   createdAt: string
   sentAt: string | null
   nextAttemptAt: string | null
+  sessionId: number | null
+  messageId: string | null
 }
 
 export interface CaughtMail {
   id: number
+  /** The Message-ID header; the local mail catcher keeps one copy per id. */
+  messageId: string | null
   receivedAt: string
   from: string
   to: string

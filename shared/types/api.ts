@@ -13,6 +13,8 @@ export const ERROR_CODES = [
   'unsupported_media_type',
   'invalid_token',
   'internal',
+  /** Storage full or read-only, or the database busy: nothing was saved; try again later. */
+  'unavailable',
 ] as const
 export type ErrorCode = (typeof ERROR_CODES)[number]
 
@@ -24,6 +26,8 @@ export interface ApiErrorBody {
     fields?: Record<string, string[]>
     /** Per-row problems of an import. */
     rows?: { row: number; errors: string[] }[]
+    /** A save over a newer revision (409 conflict): the revision the row is at now. */
+    currentRevision?: number
   }
 }
 

@@ -35,8 +35,24 @@ function errorStatus(err: unknown): number {
   return typeof status === 'number' ? status : 0
 }
 
-/** Worth trying again: no connection, a server hiccup, or too many requests at once. */
+function errorCode(err: unknown): string | null {
+  const code = (err as { code?: unknown } | null)?.code
+  return typeof code === 'string' ? code : null
+}
+
+/**
+ * Worth trying again: no connection, a server hiccup, too many requests at once, or storage the
+ * server cannot write to for now (503 `unavailable`: full, read-only or busy; nothing was saved).
+ */
 const transient = (status: number) => status === 0 || status === 429 || status >= 500
+
+/**
+ * The link can never save again: the session closed, its deadline passed, the invitation was
+ * withdrawn (410), or the link is not a valid one. The server says so with the `invalid_token`
+ * code; other refusals (a 409 asking for consent or the headphone check first) are not this.
+ */
+const linkIsOver = (status: number, code: string | null) =>
+  status === 410 || code === 'invalid_token'
 
 export class AnswerQueue {
   private entries = new Map<number, Entry>()
@@ -136,14 +152,19 @@ export class AnswerQueue {
     } catch (err) {
       const status = errorStatus(err)
       const message = (err as Error)?.message ?? 'The answer could not be saved.'
-      if (transient(status)) {
+      // A conflict is a step the server wants first: the answers keep waiting, in its words.
+      const conflict = status === 409 && !linkIsOver(status, errorCode(err))
+      if (transient(status) || conflict) {
         const wait = RETRY_DELAYS_MS[Math.min(this.failures, RETRY_DELAYS_MS.length - 1)]
         this.failures++
         this.sending = false
-        this.update({ status: status === 0 ? 'offline' : 'saving', message: null })
+        this.update({
+          status: status === 0 ? 'offline' : 'saving',
+          message: conflict ? message : null,
+        })
         return this.schedule(wait)
       }
-      if (status === 410 || status === 409 || (status === 400 && /closed|expired/i.test(message))) {
+      if (linkIsOver(status, errorCode(err))) {
         // The session has closed: nothing waiting can ever be stored, so stop and say why.
         this.entries.clear()
         this.persist()

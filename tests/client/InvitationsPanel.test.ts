@@ -53,6 +53,7 @@ const session = {
   timePoints: [],
   openedAt: at(-48 * HOUR),
   closedAt: null,
+  revision: 2,
 } satisfies SessionDetail
 
 function invitation(over: Partial<InvitationRow>): InvitationRow {

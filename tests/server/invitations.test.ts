@@ -6,6 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fakeSmtp'
 import { smtpMailer } from '../../server/mail/transport'
 import { sendDueReminders } from '../../server/invitations/reminders'
 import { buildApp, lastMailTo, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import { addAnswers, addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
 
 const DAY = 86_400_000
@@ -83,8 +84,8 @@ describe('invitations', () => {
     const codesOnly = await analyst.get(`/api/sessions/${id}/invitations`)
     const mail = lastMailTo(t.mailer, await emailOf(t, players[0]))
 
-    expect(first.body).toEqual({ created: 3, existing: 0 })
-    expect(second.body).toEqual({ created: 1, existing: 3 })
+    expect(first.body).toEqual({ created: 3, existing: 0, mailsQueued: 3 })
+    expect(second.body).toEqual({ created: 1, existing: 3, mailsQueued: 1 })
     expect(list.body.invitations).toHaveLength(4)
     expect(list.body.invitations[0]).toMatchObject({
       playerId: players[0],
@@ -264,7 +265,7 @@ describe('a deadline moved while the session runs', () => {
     await t.settle()
     const token = playerToken(lastMailTo(t.mailer, await emailOf(t, playerId)))
 
-    await developer.patch(`/api/sessions/${id}`).send({ deadline: isoDay(clock.now(), 5) })
+    await saveEdit(developer, `/api/sessions/${id}`, { deadline: isoDay(clock.now(), 5) })
     clock.advance(3 * DAY)
     const extended = await request(t.app)
       .get('/api/player/invitation')
@@ -387,7 +388,7 @@ describe('invitation mail while the mail server is down', () => {
     await t.app.locals.ctx.outbox.deliverDue()
     const sent = await t.knex('outbox').whereIn('to', emails)
 
-    expect(res.body).toEqual({ created: 2, existing: 0 })
+    expect(res.body).toEqual({ created: 2, existing: 0, mailsQueued: 2 })
     expect(waiting.map((m) => m.status)).toEqual(['pending', 'pending'])
     expect(sent.map((m) => m.status)).toEqual(['sent', 'sent'])
     expect(t.mailer.sent.filter((m) => emails.includes(m.to))).toHaveLength(2)
@@ -427,7 +428,12 @@ describe('invitation mail through a real SMTP server', () => {
       .get('/api/player/invitation')
       .set('X-Invitation-Token', token)
 
+    const queued = await t.knex('outbox').where({ to: email }).first('message_id', 'status')
+
     expect(mail.subject).toBe('Invitation: Evening listening')
+    // The Message-ID given at enqueue is the one that arrived.
+    expect(mail.messageId).toBe(queued.message_id)
+    expect(queued.status).toBe('sent')
     expect(mail.text).toMatch(/Please finish by \d{4}-\d{2}-\d{2}/)
     expect(mail.text).toMatch(/Protect your hearing/)
     expect(mail.html).toContain(`href="http://localhost:3000/p/${token}"`)

@@ -43,7 +43,9 @@ describe('the outbox while the mail server is down', () => {
     return res.body.mails.find((m: MailItem) => m.to === to)
   }
 
-  it('keeps a mail pending with back-off, marks it failed after the last attempt, and sends it on retry', async () => {
+  // A staff invitation belongs to no session: it gets maxAttempts tries, then shows as failed.
+  // (A session's mail is tried for as long as the session is open: tests/server/mail/.)
+  it('keeps a mail of no session pending with back-off, marks it failed after the last attempt, and sends it on retry', async () => {
     const { retryBaseMs, maxAttempts } = t.config.mail
     t.mailer.failing = true
     const email = uniqueEmail('patient')

@@ -289,9 +289,9 @@ describe('the hourly cap of one session', () => {
     )
     // Four of the five must leave the hour: the fourth oldest went at 09:20.
     expect(five.body.error.message).toMatch(/all 5 can go after 10:20 UTC\.$/)
-    expect(one.body).toEqual({ created: 1, existing: 0 })
+    expect(one.body).toEqual({ created: 1, existing: 0, mailsQueued: 1 })
     expect(invited).toBe(5)
-    expect(afterHour.body).toEqual({ created: 2, existing: 1 })
+    expect(afterHour.body).toEqual({ created: 2, existing: 1, mailsQueued: 2 })
     expect(await queued()).toHaveLength(7)
   })
 

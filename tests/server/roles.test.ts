@@ -47,6 +47,10 @@ describe('route tables', () => {
     expect(open.sort()).toEqual(
       [
         'get /api/health',
+        // Readiness says only ok or not per part; metrics check their reader in their own step
+        // (this machine, or the metrics token).
+        'get /api/health/ready',
+        'get /metrics',
         'post /api/auth/login',
         'post /api/auth/logout',
         'get /api/auth/me',

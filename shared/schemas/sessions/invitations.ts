@@ -30,7 +30,10 @@ export interface InvitationRow {
   playerEmail: string | null
   status: InvitationStatus
   invitedAt: string
-  /** When the invitation mail last went (first sent or sent again). */
+  /**
+   * When the invitation mail was last queued (first or again). Whether the mail server has
+   * taken it yet is in `mail`.
+   */
   lastSentAt: string
   openedAt: string | null
   startedAt: string | null
@@ -53,6 +56,33 @@ export interface InvitationRow {
    * which has no check. Filled by the tracking list and the follow-up actions.
    */
   headphoneCheck?: HeadphoneCheckState | null
+  /**
+   * Where the latest mail queued for this invitation stands (the invitation, a resend or a
+   * reminder); null when none was queued through the outbox. Filled by the tracking list and
+   * the follow-up actions.
+   */
+  mail?: InvitationMail | null
+}
+
+/**
+ * 'waiting': in the outbox, not yet taken by the mail server (it is tried again while the
+ * session is open); 'sent': the mail server took it; 'failed': it will not go (the session
+ * closed or its deadline passed first), with the reason in lastError.
+ */
+export const INVITATION_MAIL_STATES = ['waiting', 'sent', 'failed'] as const
+export type InvitationMailState = (typeof INVITATION_MAIL_STATES)[number]
+
+export interface InvitationMail {
+  kind: 'invitation' | 'reminder'
+  state: InvitationMailState
+  queuedAt: string
+  sentAt: string | null
+  /** Tries so far. */
+  attempts: number
+  /** What went wrong on the last try, or why it will not go. */
+  lastError: string | null
+  /** When the next try is due, while it waits. */
+  nextTryAt: string | null
 }
 
 export type HeadphoneCheckState = 'passed' | 'retry' | 'failed' | 'not_done'
@@ -60,6 +90,8 @@ export type HeadphoneCheckState = 'passed' | 'retry' | 'failed' | 'not_done'
 export interface InviteResult {
   created: number
   existing: number
+  /** Invitation mails this call put in the outbox; they go out as the mail server takes them. */
+  mailsQueued: number
 }
 
 /** What "remind everyone not done" did. */
