@@ -5,6 +5,7 @@ import { recordAudit, type Actor } from '../audit/service'
 import { namesOf, opened, sessionsUsing } from '../sessions/usage'
 import type { ClipDetail } from '../../shared/schemas/clips'
 import { getClip } from './read'
+import { nextRevision } from '../lib/revision'
 
 // A clip that a session uses is evidence: it is archived (kept, hidden from pickers and lists)
 // instead of deleted, and once a session has opened, only its notes can change.
@@ -48,7 +49,11 @@ async function setArchived(
     const now = ctx.clock.now()
     await trx('clips')
       .where({ id })
-      .update({ archived_at: archive ? now.toISOString() : null, updated_at: now.toISOString() })
+      .update({
+        archived_at: archive ? now.toISOString() : null,
+        updated_at: now.toISOString(),
+        ...nextRevision(trx),
+      })
     await recordAudit(trx, now, actor, {
       action: archive ? 'clips.archived' : 'clips.restored',
       targetType: 'clip',

@@ -14,22 +14,28 @@ import { fieldColumns, fieldsOfRow, type StoredRow } from './columns'
 import { clipDeps, keyOf, serialised, withBalancedSets } from './balance'
 import { getClip } from './read'
 import { assertClipChangeAllowed, assertClipDeletable } from './archive'
+import { assertRevision, updateAtRevision } from '../lib/revision'
 import type { ClipDetail, ClipUploadFields } from '../../shared/schemas/clips'
 
 /**
- * Changes a clip's fields. Moving it to another set re-balances both sets; changing its kind
- * measures the original again, since decay and attack belong to different kinds.
+ * Changes a clip's fields, as long as nobody has changed the clip since the form was loaded at
+ * `revision`. Moving it to another set re-balances both sets; changing its kind measures the
+ * original again, since decay and attack belong to different kinds.
  */
 export function updateClip(
   ctx: AppContext,
   id: number,
-  body: Partial<ClipUploadFields>,
+  { revision, ...body }: Partial<ClipUploadFields> & { revision: number },
   actor: Actor,
 ): Promise<ClipDetail> {
   const deps = clipDeps(ctx)
   return serialised(ctx.knex, async () => {
-    const row: StoredRow | undefined = await ctx.knex('clips').where({ id }).first()
+    const row: (StoredRow & { revision: number }) | undefined = await ctx
+      .knex('clips')
+      .where({ id })
+      .first()
     if (!row) throw notFound('Clip')
+    assertRevision('clips', row, revision)
     const before = fieldsOfRow(row)
     const after = await resolveClipFields(
       ctx.knex,
@@ -54,13 +60,12 @@ export function updateClip(
           )
         : {}
     const write = async (trx: Knex.Transaction) => {
-      await trx('clips')
-        .where({ id })
-        .update({
-          ...fieldColumns(after),
-          ...remeasured,
-          updated_at: deps.clock.now().toISOString(),
-        })
+      // The rendition writes of a set move leave the revision alone: they change no field.
+      await updateAtRevision(trx, 'clips', id, revision, {
+        ...fieldColumns(after),
+        ...remeasured,
+        updated_at: deps.clock.now().toISOString(),
+      })
       await recordAudit(trx, deps.clock.now(), actor, {
         action: 'clips.updated',
         targetType: 'clip',

@@ -18,6 +18,7 @@ export interface ClipRow {
   recorded_on: string | null
   kind: Clip['kind']
   notes: string
+  revision: number
   archived_at: string | null
   original_name: string
   rendition_gain_db: number
@@ -62,6 +63,7 @@ export function clipQuery(knex: Knex) {
       'c.recorded_on',
       'c.kind',
       'c.notes',
+      'c.revision',
       'c.archived_at',
       'c.original_name',
       'c.rendition_gain_db',
@@ -100,6 +102,7 @@ export const toClip = (r: ClipRow): Clip => ({
   recordedOn: r.recorded_on,
   kind: r.kind,
   notes: r.notes,
+  revision: r.revision,
   archivedAt: r.archived_at,
   originalName: r.original_name,
   renditionGainDb: r.rendition_gain_db,

@@ -4,6 +4,7 @@ import type { AppContext } from '../context'
 import { conflict, notFound } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { whereContains } from '../db/like'
+import { assertRevision, nextRevision, updateAtRevision } from '../lib/revision'
 import type {
   CreatePlayerBody,
   ListPlayersQuery,
@@ -24,6 +25,7 @@ export interface PlayerRow {
   consent_date: string | null
   notes: string
   status: Player['status']
+  revision: number
   created_at: string
   updated_at: string
   deleted_at: string | null
@@ -40,6 +42,7 @@ export const toPlayer = (r: PlayerRow): Player => ({
   consentDate: r.consent_date,
   notes: r.notes,
   status: r.status,
+  revision: r.revision,
   createdAt: r.created_at,
   updatedAt: r.updated_at,
 })
@@ -159,6 +162,7 @@ export async function updatePlayer(
   return ctx.knex.transaction(async (trx) => {
     const row: PlayerRow | undefined = await trx('players').where({ id }).first()
     if (!row || row.status === 'deleted') throw notFound('Player')
+    assertRevision('players', row, body.revision)
     if (body.email && body.email !== row.email) await assertEmailFree(trx, body.email, id)
     const changes: Record<string, unknown> = {}
     if (body.name !== undefined) changes.name = body.name
@@ -173,9 +177,10 @@ export async function updatePlayer(
       (k) => changes[k] !== (row as unknown as Record<string, unknown>)[k],
     )
     if (changed.length === 0) return toPlayer(row)
-    await trx('players')
-      .where({ id })
-      .update({ ...changes, updated_at: ctx.clock.now().toISOString() })
+    await updateAtRevision(trx, 'players', id, body.revision, {
+      ...changes,
+      updated_at: ctx.clock.now().toISOString(),
+    })
     await recordAudit(trx, ctx.clock.now(), actor, {
       action:
         body.status === 'inactive' && row.status === 'active'
@@ -199,16 +204,19 @@ export async function erasePlayer(ctx: AppContext, id: number, actor: Actor): Pr
     const row: PlayerRow | undefined = await trx('players').where({ id }).first()
     if (!row || row.status === 'deleted') throw notFound('Player')
     const now = ctx.clock.now().toISOString()
-    await trx('players').where({ id }).update({
-      name: null,
-      email: null,
-      region: '',
-      notes: '',
-      consent_date: null,
-      status: 'deleted',
-      deleted_at: now,
-      updated_at: now,
-    })
+    await trx('players')
+      .where({ id })
+      .update({
+        name: null,
+        email: null,
+        region: '',
+        notes: '',
+        consent_date: null,
+        status: 'deleted',
+        deleted_at: now,
+        updated_at: now,
+        ...nextRevision(trx),
+      })
     await recordAudit(trx, ctx.clock.now(), actor, {
       action: 'panel.player_erased',
       targetType: 'player',

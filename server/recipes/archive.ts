@@ -5,6 +5,7 @@ import { recordAudit, type Actor } from '../audit/service'
 import { namesOf, opened, sessionsUsing } from '../sessions/usage'
 import type { Recipe, RecipeVersionBody } from '../../shared/schemas/recipes'
 import { createRecipe, getRecipe } from './service'
+import { nextRevision } from '../lib/revision'
 
 // A recipe a session has opened with is frozen: its construction stays what players heard or
 // played; a change makes a new version that later sessions can pick. Used recipes are archived,
@@ -43,6 +44,7 @@ export async function createRecipeVersion(
     createdAt: _a,
     updatedAt: _u,
     archivedAt: _x,
+    revision: _r,
     ...fields
   } = base
   const created = await createRecipe(ctx, { ...fields, ...changes }, actor, id)
@@ -60,7 +62,11 @@ async function setArchived(ctx: AppContext, id: number, archive: boolean, actor:
     const now = ctx.clock.now()
     await trx('recipes')
       .where({ id })
-      .update({ archived_at: archive ? now.toISOString() : null, updated_at: now.toISOString() })
+      .update({
+        archived_at: archive ? now.toISOString() : null,
+        updated_at: now.toISOString(),
+        ...nextRevision(trx),
+      })
     await recordAudit(trx, now, actor, {
       action: archive ? 'recipe.archived' : 'recipe.restored',
       targetType: 'recipe',
@@ -89,7 +95,10 @@ export async function deleteRecipe(ctx: AppContext, id: number, actor: Actor) {
       `This recipe has ${n} recording${Number(n) === 1 ? '' : 's'}: delete or archive them first.`,
     )
   await ctx.knex.transaction(async (trx) => {
-    await trx('recipes').where({ parent_id: id }).update({ parent_id: null })
+    // Its children lose their parent: a form opened on one of them is out of date now.
+    await trx('recipes')
+      .where({ parent_id: id })
+      .update({ parent_id: null, ...nextRevision(trx) })
     await trx('recipes').where({ id }).delete()
     await recordAudit(trx, ctx.clock.now(), actor, {
       action: 'recipe.deleted',

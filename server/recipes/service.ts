@@ -5,6 +5,7 @@ import { recordAudit, type Actor } from '../audit/service'
 import { whereContains } from '../db/like'
 import { TUNINGS } from '../../shared/constants'
 import { assertRecipeChangeAllowed } from './archive'
+import { assertRevision, updateAtRevision } from '../lib/revision'
 import type {
   CreateRecipeBody,
   ListRecipesQuery,
@@ -31,6 +32,7 @@ interface RecipeRow {
   parent_name: string | null
   status: Recipe['status']
   notes: string
+  revision: number
   archived_at: string | null
   created_by_email: string | null
   created_at: string
@@ -55,6 +57,7 @@ const toRecipe = (r: RecipeRow): Recipe => ({
   parentName: r.parent_name,
   status: r.status,
   notes: r.notes,
+  revision: r.revision,
   archivedAt: r.archived_at,
   createdBy: r.created_by_email,
   createdAt: r.created_at,
@@ -205,6 +208,7 @@ export async function updateRecipe(
   await ctx.knex.transaction(async (trx) => {
     const row = await trx('recipes').where({ id }).first()
     if (!row) throw notFound('Recipe')
+    assertRevision('recipes', row, body.revision)
     const merged = {
       instrument: body.instrument ?? row.instrument,
       stringName: body.stringName ?? row.string_name,
@@ -225,14 +229,15 @@ export async function updateRecipe(
       })
       .map(([field]) => field)
     await assertRecipeChangeAllowed(trx, id, changed)
-    await trx('recipes')
-      .where({ id })
-      .update({ ...changes, updated_at: ctx.clock.now().toISOString() })
+    await updateAtRevision(trx, 'recipes', id, body.revision, {
+      ...changes,
+      updated_at: ctx.clock.now().toISOString(),
+    })
     await recordAudit(trx, ctx.clock.now(), actor, {
       action: 'recipe.updated',
       targetType: 'recipe',
       targetId: id,
-      details: { fields: Object.keys(body) },
+      details: { fields: Object.keys(body).filter((f) => f !== 'revision') },
     })
   })
   return getRecipe(ctx.knex, id)

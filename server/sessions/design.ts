@@ -20,6 +20,7 @@ import {
   type StoredDesign,
 } from './rows'
 import { getSession } from './read'
+import { assertRevision, updateAtRevision } from '../lib/revision'
 import {
   LOCKED_DESIGN_FIELDS,
   type SessionDesignParsed,
@@ -88,7 +89,9 @@ export async function createSession(
   return getSession(ctx.knex, id, now)
 }
 
-const COLUMNS: Record<keyof UpdateSessionBody, keyof SessionRow> = {
+type DesignField = Exclude<keyof UpdateSessionBody, 'revision'>
+
+const COLUMNS: Record<DesignField, keyof SessionRow> = {
   name: 'name',
   purpose: 'purpose',
   format: 'format',
@@ -116,8 +119,10 @@ export async function updateSession(
   await ctx.knex.transaction(async (trx) => {
     const row = await loadSession(trx, id)
     if (row.status === 'closed') throw conflict('This session is closed and can no longer change')
+    assertRevision('sessions', row, body.revision)
+    const { revision, ...fields } = body
     const changes: Record<string, unknown> = {}
-    for (const [field, value] of Object.entries(body) as [keyof UpdateSessionBody, unknown][]) {
+    for (const [field, value] of Object.entries(fields) as [DesignField, unknown][]) {
       if (value === undefined) continue
       const stored = JSON_FIELDS.has(field) ? JSON.stringify(value) : value
       const current = row[COLUMNS[field]]
@@ -147,9 +152,10 @@ export async function updateSession(
       )
       assertPossible(review)
     }
-    await trx('sessions')
-      .where({ id })
-      .update({ ...changes, updated_at: now.toISOString() })
+    await updateAtRevision(trx, 'sessions', id, revision, {
+      ...changes,
+      updated_at: now.toISOString(),
+    })
     // Nobody has answered yet (the design would be locked): what players will be served follows.
     if (lockedTouched.length > 0 && row.status === 'open')
       await refixSessionPlans(trx, await loadSession(trx, id), now)
@@ -158,9 +164,7 @@ export async function updateSession(
       targetType: 'session',
       targetId: id,
       details: {
-        fields: Object.keys(body).filter((f) =>
-          touched.includes(COLUMNS[f as keyof UpdateSessionBody]),
-        ),
+        fields: Object.keys(fields).filter((f) => touched.includes(COLUMNS[f as DesignField])),
       },
     })
   })

@@ -9,6 +9,7 @@ import { recordAudit, type Actor } from '../audit/service'
 import { assertPossible, reviewDesign } from './designReview'
 import { designOf, loadSession, playerWordsOf, type SessionRow } from './rows'
 import { getSession } from './read'
+import { nextRevision } from '../lib/revision'
 import type { SessionDetail } from '../../shared/schemas/sessions'
 
 interface Step {
@@ -30,7 +31,13 @@ async function step(ctx: AppContext, id: number, actor: Actor, s: Step): Promise
     const details = (await s.check?.(trx, row, now)) ?? undefined
     await trx('sessions')
       .where({ id })
-      .update({ status: s.to, [s.stamp]: now.toISOString(), updated_at: now.toISOString() })
+      .update({
+        status: s.to,
+        [s.stamp]: now.toISOString(),
+        updated_at: now.toISOString(),
+        // A form opened before the step would otherwise save over the new status's rules.
+        ...nextRevision(trx),
+      })
     await recordAudit(trx, now, actor, {
       action: s.action,
       targetType: 'session',

@@ -69,5 +69,6 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
     timePoints: family.map((f) => ({ id: f.id, label: f.time_point_label, status: f.status })),
     openedAt: s.opened_at,
     closedAt: s.closed_at,
+    revision: s.revision,
   }
 }

@@ -40,6 +40,8 @@ export interface SessionRow {
   updated_at: string
   opened_at: string | null
   closed_at: string | null
+  /** Moves on with every change; an edit names the one it was loaded at. */
+  revision: number
 }
 
 /** The player title and message, as the design review checks them. */

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { INSTRUMENTS, LIMITS, PLAYER_LEVELS, PLAYER_STATUSES } from '../constants'
 import { email, isoDate, personName } from './common'
+import { namesAChange, revision } from './revision'
 
 const instruments = z
   .array(z.enum(INSTRUMENTS, `Instruments are ${INSTRUMENTS.join(', ')}`))
@@ -36,8 +37,9 @@ export const updatePlayerBody = z
     consentDate: playerFields.consentDate.optional(),
     notes: playerFields.notes.optional(),
     status: z.enum(['active', 'inactive'], 'Choose active or inactive').optional(),
+    revision,
   })
-  .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
+  .refine(namesAChange, 'Nothing to change')
 export type UpdatePlayerBody = z.infer<typeof updatePlayerBody>
 
 export const PLAYER_SORTS = ['name', 'level', 'region', 'consentDate', 'createdAt', 'code'] as const
@@ -98,6 +100,8 @@ export interface Player {
   consentDate: string | null
   notes: string
   status: (typeof PLAYER_STATUSES)[number]
+  /** Moves on with every change; an edit sends the one it was loaded at. */
+  revision: number
   createdAt: string
   updatedAt: string
 }

@@ -12,6 +12,7 @@ import {
   type Instrument,
 } from '../constants'
 import { visibleText } from './visibleText'
+import { namesAChange, revision } from './revision'
 
 export const windingLayer = z.strictObject({
   material: z.enum(WINDING_MATERIALS, `Material is one of ${WINDING_MATERIALS.join(', ')}`),
@@ -97,8 +98,9 @@ export const updateRecipeBody = z
     ...changeFields,
     version: recipeFields.version.optional(),
     parentId: recipeFields.parentId.optional(),
+    revision,
   })
-  .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
+  .refine(namesAChange, 'Nothing to change')
 export type UpdateRecipeBody = z.infer<typeof updateRecipeBody>
 
 /**
@@ -142,6 +144,8 @@ export interface Recipe {
   parentName: string | null
   status: (typeof RECIPE_STATUSES)[number]
   notes: string
+  /** Moves on with every change; an edit sends the one it was loaded at. */
+  revision: number
   /** Set when archived: hidden from lists and pickers, kept for the sessions that use it. */
   archivedAt: string | null
   createdBy: string | null

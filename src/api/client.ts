@@ -8,6 +8,8 @@ export class ApiError extends Error {
     message: string,
     readonly fields: Record<string, string[]> = {},
     readonly rows: { row: number; errors: string[] }[] = [],
+    /** A save refused because the row moved on (409): the revision it is at now. */
+    readonly currentRevision?: number,
   ) {
     super(message)
   }
@@ -74,6 +76,7 @@ export async function request<T>(
       err?.message ?? `The server answered ${res.status}`,
       err?.fields,
       err?.rows,
+      err?.currentRevision,
     )
   }
   return data as T

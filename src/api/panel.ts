@@ -11,6 +11,7 @@ export const panelApi = {
   summary: () => api.get<PanelSummary>('/panel/summary'),
   list: (query: Partial<ListPlayersQuery>) =>
     api.get<{ players: Player[] }>('/panel/players', query),
+  get: (id: number) => api.get<{ player: Player }>(`/panel/players/${id}`),
   create: (body: CreatePlayerBody) => api.post<{ player: Player }>('/panel/players', body),
   update: (id: number, body: UpdatePlayerBody) =>
     api.patch<{ player: Player }>(`/panel/players/${id}`, body),

@@ -10,6 +10,7 @@ import { api } from './client'
 export const recipesApi = {
   list: (query: Partial<ListRecipesQuery> = {}) =>
     api.get<{ recipes: Recipe[] }>('/recipes', query),
+  get: (id: number) => api.get<{ recipe: Recipe }>(`/recipes/${id}`),
   create: (body: CreateRecipeBody) => api.post<{ recipe: Recipe }>('/recipes', body),
   update: (id: number, body: UpdateRecipeBody) =>
     api.patch<{ recipe: Recipe }>(`/recipes/${id}`, body),

@@ -5,7 +5,7 @@ import type { Recipe, RecipeVersionBody, UpdateRecipeBody } from '@shared/schema
 /** What the recipe form edits: a recipe's own fields, without what the server keeps. */
 export type RecipeForm = Omit<
   Recipe,
-  'id' | 'parentName' | 'createdBy' | 'createdAt' | 'updatedAt' | 'archivedAt'
+  'id' | 'parentName' | 'createdBy' | 'createdAt' | 'updatedAt' | 'archivedAt' | 'revision'
 >
 
 /**
@@ -36,6 +36,18 @@ export const EDIT_FIELDS = [
   'version',
   'parentId',
 ] as const satisfies readonly (keyof UpdateRecipeBody)[]
+
+/** How the form names its fields, where the field's own name does not say it. */
+export const FIELD_LABELS: Partial<Record<keyof RecipeForm, string>> = {
+  stringName: 'string',
+  dampingKind: 'damping',
+  dampingGrade: 'damping grade',
+  dampingNotes: 'damping notes',
+  gaugeMm: 'gauge',
+  tensionN: 'tension',
+  vibratingLengthMm: 'vibrating length',
+  parentId: 'derived from',
+}
 
 /** Words, not construction: these still change on a recipe that sessions have opened with. */
 const FREE_FIELDS: readonly string[] = ['name', 'notes', 'status']
@@ -69,6 +81,7 @@ export function recipeFormOf(recipe: Recipe): RecipeForm {
     createdAt: _a,
     updatedAt: _u,
     archivedAt: _x,
+    revision: _r,
     ...own
   } = recipe
   return JSON.parse(JSON.stringify(own)) as RecipeForm

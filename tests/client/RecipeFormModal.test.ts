@@ -95,8 +95,8 @@ describe('the recipe form', () => {
     await type('Gauge', '0.66')
     await submit()
 
-    // The edit sent only what changed.
-    expect(sent[0]).toMatchObject({ method: 'PATCH', body: { gaugeMm: 0.66 } })
+    // The edit sent only what changed, and the revision the form was loaded at.
+    expect(sent[0]).toMatchObject({ method: 'PATCH', body: { gaugeMm: 0.66, revision: 3 } })
     const alert = document.querySelector('[data-test=recipe-save-error]')!
     expect(alert.textContent).toContain(message)
     const gauge = field('Gauge').closest('.n-form-item')!
@@ -127,5 +127,72 @@ describe('the recipe form', () => {
       'There is already a recipe',
     )
     expect(button('Make a new version instead')).toBeUndefined()
+  })
+
+  describe('when someone else saved the recipe first', () => {
+    // The other person's save: new notes, the revision moved on from the form's 3 to 4.
+    const theirs = recipe({ notes: 'Rewound on the new lathe', revision: 4 })
+    const stale = () => ({
+      status: 409,
+      body: {
+        error: {
+          code: 'conflict',
+          message: 'Someone saved this recipe after you opened it, so your changes were not saved.',
+          currentRevision: 4,
+        },
+      },
+    })
+    const dialog = () => document.querySelector('[data-test=edit-conflict]')
+
+    it('offers both reloads, and keeping mine lays my change over theirs, unsaved', async () => {
+      let patches = 0
+      const { sent } = fakeServer(
+        on('PATCH', '/recipes/1', (req) =>
+          ++patches === 1 ? stale() : { body: { recipe: { ...theirs, ...(req.body as object) } } },
+        ),
+        on('GET', '/recipes/1', () => ({ body: { recipe: theirs } })),
+      )
+      const w = await open('edit')
+      await type('Gauge', '0.66')
+      await submit()
+
+      expect(dialog()?.textContent).toContain(
+        'This was changed by someone else since you opened it',
+      )
+      expect(button('Reload their version')).toBeDefined()
+      button('Reload and keep my changes')!.click()
+      await flushPromises()
+
+      // Their notes and my gauge are both in the form; nothing was saved on the way.
+      expect((field('Gauge') as HTMLInputElement).value).toBe('0.66')
+      expect(field('Notes').value).toBe('Rewound on the new lathe')
+      expect(sent.filter((r) => r.method === 'PATCH')).toHaveLength(1)
+      expect(w.emitted('saved')).toBeUndefined()
+      expect(document.querySelector('[data-test=reapplied]')?.textContent).toContain(
+        'your changes to gauge on top',
+      )
+
+      await submit()
+      const second = sent.filter((r) => r.method === 'PATCH')[1]
+      // Only my change goes, over the revision just loaded: their notes are not sent back.
+      expect(second.body).toEqual({ gaugeMm: 0.66, revision: 4 })
+      expect(w.emitted('saved')).toHaveLength(1)
+    })
+
+    it('reloading their version drops my change and shows theirs', async () => {
+      const { sent } = fakeServer(
+        on('PATCH', '/recipes/1', stale),
+        on('GET', '/recipes/1', () => ({ body: { recipe: theirs } })),
+      )
+      await open('edit')
+      await type('Notes', 'My own notes')
+      await submit()
+      button('Reload their version')!.click()
+      await flushPromises()
+
+      expect(field('Notes').value).toBe('Rewound on the new lathe')
+      expect(document.querySelector('[data-test=recipe-save-error]')).toBeNull()
+      expect(sent.map((r) => r.method)).toEqual(['PATCH', 'GET'])
+    })
   })
 })

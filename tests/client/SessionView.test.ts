@@ -74,6 +74,7 @@ function detail(over: Partial<SessionDetail> = {}): SessionDetail {
     timePoints: [],
     openedAt: '2026-10-02T10:00:00.000Z',
     closedAt: '2026-11-03T10:00:00.000Z',
+    revision: 4,
     ...over,
   }
 }

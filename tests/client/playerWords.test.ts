@@ -51,6 +51,7 @@ const session = (over: Partial<SessionDetail> = {}): SessionDetail => ({
   timePoints: [],
   openedAt: null,
   closedAt: null,
+  revision: 1,
   ...over,
 })
 

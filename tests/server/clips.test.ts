@@ -17,6 +17,7 @@ import { seedDemoClips } from '../../seeds/demo/clips'
 import { mediaFolders } from '../../server/clips/storage'
 import { systemClock } from '../../server/clock'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 
 const RATE = 48_000
 const SECRET_RECIPE = 'Quillon Hollowcore Secret'
@@ -606,9 +607,11 @@ describe('the clip library', () => {
 
   it('edits fields, re-measures on a change of kind, and audits the change', async () => {
     const clip = await uploaded({ bytes: wav16(), fields: { performerCode: freshPerformer() } })
-    const res = await developer
-      .patch(`/api/clips/${clip.id}`)
-      .send({ notes: 'bow changed mid-take', kind: 'plucked', performerCode: freshPerformer() })
+    const res = await saveEdit(developer, `/api/clips/${clip.id}`, {
+      notes: 'bow changed mid-take',
+      kind: 'plucked',
+      performerCode: freshPerformer(),
+    })
     expect(res.status).toBe(200)
     expect(res.body.clip).toMatchObject({ notes: 'bow changed mid-take', kind: 'plucked' })
     expect(res.body.clip.attackS).toBeNull()

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { buildApp, signInAs, uniqueEmail, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 
 interface Player {
   id: number
@@ -159,7 +160,7 @@ describe('listing the panel', () => {
         level: 'teacher',
       }),
     }
-    await admin.patch(`/api/panel/players/${rows.dov.id}`).send({ status: 'inactive' })
+    await saveEdit(admin, `/api/panel/players/${rows.dov.id}`, { status: 'inactive' })
   })
 
   const names = async (query: Record<string, string>) => {
@@ -222,9 +223,10 @@ describe('editing a player', () => {
   it('changes the given fields only', async () => {
     const player = await addPlayer({ region: 'Upland', notes: 'Left-handed bow hold' })
 
-    const res = await admin
-      .patch(`/api/panel/players/${player.id}`)
-      .send({ name: 'Ottoline Farrant-Wilde', level: 'teacher' })
+    const res = await saveEdit(admin, `/api/panel/players/${player.id}`, {
+      name: 'Ottoline Farrant-Wilde',
+      level: 'teacher',
+    })
 
     expect(res.status).toBe(200)
     expect(res.body.player).toMatchObject({
@@ -240,8 +242,8 @@ describe('editing a player', () => {
     const a = await addPlayer()
     const b = await addPlayer()
 
-    const taken = await admin.patch(`/api/panel/players/${b.id}`).send({ email: a.email })
-    const empty = await admin.patch(`/api/panel/players/${b.id}`).send({})
+    const taken = await saveEdit(admin, `/api/panel/players/${b.id}`, { email: a.email })
+    const empty = await saveEdit(admin, `/api/panel/players/${b.id}`, {})
 
     expect(taken.status).toBe(409)
     expect(empty.status).toBe(422)
@@ -251,7 +253,7 @@ describe('editing a player', () => {
     const region = freshRegion()
     const player = await addPlayer({ region })
 
-    const res = await admin.patch(`/api/panel/players/${player.id}`).send({ status: 'inactive' })
+    const res = await saveEdit(admin, `/api/panel/players/${player.id}`, { status: 'inactive' })
     const listed = await admin.get('/api/panel/players').query({ q: region })
 
     expect(res.body.player.status).toBe('inactive')
@@ -281,7 +283,7 @@ describe('deleting a player on request', () => {
       notes: 'Plays with a shoulder rest',
       consentDate: '2026-05-05',
     })
-    await admin.patch(`/api/panel/players/${player.id}`).send({ notes: 'Allergic to rosin dust' })
+    await saveEdit(admin, `/api/panel/players/${player.id}`, { notes: 'Allergic to rosin dust' })
 
     const res = await admin.delete(`/api/panel/players/${player.id}`)
     const stored = await admin.get(`/api/panel/players/${player.id}`)
@@ -310,7 +312,7 @@ describe('deleting a player on request', () => {
 
     await admin.delete(`/api/panel/players/${player.id}`)
     const again = await admin.delete(`/api/panel/players/${player.id}`)
-    const edit = await admin.patch(`/api/panel/players/${player.id}`).send({ name: 'Back Again' })
+    const edit = await saveEdit(admin, `/api/panel/players/${player.id}`, { name: 'Back Again' })
     const reuse = await admin.post('/api/panel/players').send({
       name: 'Ottoline Farrant',
       email: player.email,
@@ -331,7 +333,7 @@ describe('the panel summary', () => {
     const bassist = await addPlayer({ instruments: ['double bass', 'cello'], level: 'amateur' })
     const leaving = await addPlayer({ instruments: ['viola'], level: 'teacher' })
     const gone = await addPlayer({ instruments: ['viola'], level: 'teacher' })
-    await admin.patch(`/api/panel/players/${leaving.id}`).send({ status: 'inactive' })
+    await saveEdit(admin, `/api/panel/players/${leaving.id}`, { status: 'inactive' })
     await admin.delete(`/api/panel/players/${gone.id}`)
     const after = (await admin.get('/api/panel/summary')).body
 

@@ -3,6 +3,7 @@ import { fixedClock } from '../../server/clock'
 import { playerWordProblems, type RecipeWords } from '../../server/sessions/playerWords'
 import { SESSIONS } from '../../seeds/demo/story'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import { addAnswers, addClip, addPlayers, isoDay } from './sessionFixtures'
 
 // The words players see may not name a recipe, its version label, or a construction word that
@@ -227,14 +228,14 @@ describe('sessions refuse telling player words', () => {
     })
     const otherClip = await addClip(t.knex, other.body.recipe.id, { performer: `PF-W${n}` })
 
-    const words = await developer
-      .patch(`/api/sessions/${id}`)
-      .send({ playerMessage: `Compare ${r.damped.name} with the other.` })
+    const words = await saveEdit(developer, `/api/sessions/${id}`, {
+      playerMessage: `Compare ${r.damped.name} with the other.`,
+    })
     // Neutral for these two recipes; a third one named Brisk makes it telling.
-    const retitled = await developer
-      .patch(`/api/sessions/${id}`)
-      .send({ playerTitle: 'Brisk evening' })
-    const added = await developer.patch(`/api/sessions/${id}`).send({
+    const retitled = await saveEdit(developer, `/api/sessions/${id}`, {
+      playerTitle: 'Brisk evening',
+    })
+    const added = await saveEdit(developer, `/api/sessions/${id}`, {
       recipeIds: [...r.recipeIds, other.body.recipe.id],
       clipSets: [{ key: 'scale', clipIds: [...r.clipSets[0].clipIds, otherClip] }],
     })
@@ -263,7 +264,7 @@ describe('sessions refuse telling player words', () => {
     const id = (
       await developer.post('/api/sessions').send(body(r, { playerTitle: 'Evening with Tamsin' }))
     ).body.session.id
-    const renamed = await developer.patch(`/api/recipes/${r.bare.id}`).send({ name: 'Tamsin' })
+    const renamed = await saveEdit(developer, `/api/recipes/${r.bare.id}`, { name: 'Tamsin' })
 
     const open = await developer.post(`/api/sessions/${id}/open`).send({})
     const detail = await developer.get(`/api/sessions/${id}`)
@@ -289,12 +290,12 @@ describe('sessions refuse telling player words', () => {
     const inv = await t.knex('invitations').where({ session_id: id }).first('id')
     await addAnswers(t.knex, inv.id, [0], clock.now().toISOString())
 
-    const telling = await developer
-      .patch(`/api/sessions/${id}`)
-      .send({ playerMessage: 'One of them has a viscous bead.' })
-    const neutral = await developer
-      .patch(`/api/sessions/${id}`)
-      .send({ playerMessage: 'Take a break halfway.' })
+    const telling = await saveEdit(developer, `/api/sessions/${id}`, {
+      playerMessage: 'One of them has a viscous bead.',
+    })
+    const neutral = await saveEdit(developer, `/api/sessions/${id}`, {
+      playerMessage: 'Take a break halfway.',
+    })
 
     expect(telling.status).toBe(422)
     expect(Object.keys(telling.body.error.fields)).toEqual(['playerMessage'])

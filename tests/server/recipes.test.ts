@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import type { Recipe } from '../../shared/schemas/recipes'
 
 let t: TestApp
@@ -99,10 +100,10 @@ describe('recipes', () => {
     const list = (await developer.get('/api/recipes')).body.recipes as Recipe[]
     const bare = list.find((r) => r.name === 'Aurel A bare')!
     const heavy = list.find((r) => r.name === 'Aurel A heavy compound')!
-    const loop = await developer.patch(`/api/recipes/${bare.id}`).send({ parentId: heavy.id })
+    const loop = await saveEdit(developer, `/api/recipes/${bare.id}`, { parentId: heavy.id })
     expect(loop.status).toBe(422)
     expect(loop.body.error.fields.parentId[0]).toMatch(/descend from itself/)
-    const ok = await developer.patch(`/api/recipes/${heavy.id}`).send({ status: 'retired' })
+    const ok = await saveEdit(developer, `/api/recipes/${heavy.id}`, { status: 'retired' })
     expect(ok.body.recipe.status).toBe('retired')
   })
 

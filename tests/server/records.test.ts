@@ -4,6 +4,7 @@ import { fixedClock } from '../../server/clock'
 import { FINDINGS_TABLES } from '../../shared/schemas/findings'
 import { up as writeOlderRecords } from '../../migrations/20261202000100_served_records_data'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import { addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
 import { answerFor, invitedOf, passHeadphoneCheck } from './playerFixtures'
 
@@ -91,7 +92,7 @@ describe('clips and recipes used by a session', () => {
     const { id, clipIds, recipeIds } = await answeredSession('rating')
     const before = await evidence(id)
     const clip = clipIds[0]
-    const moved = await developer.patch(`/api/clips/${clip}`).send({ recipeId: recipeIds[1] })
+    const moved = await saveEdit(developer, `/api/clips/${clip}`, { recipeId: recipeIds[1] })
     expect(moved.status).toBe(409)
     expect(moved.body.error.message).toMatch(/“Records rating” \(closed\)/)
     expect(moved.body.error.fields).toHaveProperty('recipeId')
@@ -107,10 +108,10 @@ describe('clips and recipes used by a session', () => {
   it('refuse a construction change of a used recipe but take a new name and notes, audited', async () => {
     const { recipeIds } = await answeredSession('pair')
     const r = recipeIds[0]
-    const core = await developer.patch(`/api/recipes/${r}`).send({ core: 'gut' })
+    const core = await saveEdit(developer, `/api/recipes/${r}`, { core: 'gut' })
     expect(core.status).toBe(409)
     expect(core.body.error.message).toMatch(/Make a new version/)
-    const words = await developer.patch(`/api/recipes/${r}`).send({ notes: 'Settled in fine.' })
+    const words = await saveEdit(developer, `/api/recipes/${r}`, { notes: 'Settled in fine.' })
     expect(words.status).toBe(200)
     expect(words.body.recipe.notes).toBe('Settled in fine.')
     const audit = await t
@@ -124,14 +125,20 @@ describe('clips and recipes used by a session', () => {
       const { id, clipIds, recipeIds } = await answeredSession(format)
       const before = await evidence(id)
       for (const clip of clipIds) {
-        const noted = await developer.patch(`/api/clips/${clip}`).send({ notes: 'Checked again' })
+        const noted = await saveEdit(developer, `/api/clips/${clip}`, { notes: 'Checked again' })
         expect(noted.status, JSON.stringify(noted.body)).toBe(200)
-        await developer.patch(`/api/clips/${clip}`).send({ kind: 'plucked' }).expect(409)
+        expect((await saveEdit(developer, `/api/clips/${clip}`, { kind: 'plucked' })).status).toBe(
+          409,
+        )
         await developer.post(`/api/clips/${clip}/archive`).expect(200)
       }
       for (const recipe of recipeIds) {
-        await developer.patch(`/api/recipes/${recipe}`).send({ notes: 'Reviewed' }).expect(200)
-        await developer.patch(`/api/recipes/${recipe}`).send({ gaugeMm: 0.71 }).expect(409)
+        expect(
+          (await saveEdit(developer, `/api/recipes/${recipe}`, { notes: 'Reviewed' })).status,
+        ).toBe(200)
+        expect(
+          (await saveEdit(developer, `/api/recipes/${recipe}`, { gaugeMm: 0.71 })).status,
+        ).toBe(409)
         const version = await developer
           .post(`/api/recipes/${recipe}/versions`)
           .send({ gaugeMm: 0.71 })

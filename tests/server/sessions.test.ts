@@ -8,6 +8,7 @@ import {
 } from '../../server/analysis/index.ts'
 import { seedDemoSessions } from '../../seeds/demo/sessions'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import {
   addAnswers,
   addClip,
@@ -198,17 +199,17 @@ describe('a session from draft to closed', () => {
     await developer.post(`/api/sessions/${id}/invitations`).send({ playerIds: [playerId] })
 
     const again = await developer.post(`/api/sessions/${id}/open`)
-    const beforeAnswers = await developer.patch(`/api/sessions/${id}`).send({ duplicates: 1 })
+    const beforeAnswers = await saveEdit(developer, `/api/sessions/${id}`, { duplicates: 1 })
     const inv = await t.knex('invitations').where({ session_id: id }).first('id')
     await addAnswers(t.knex, inv.id, [0], clock.now().toISOString())
-    const locked = await developer.patch(`/api/sessions/${id}`).send({ duplicates: 2 })
-    const editable = await developer.patch(`/api/sessions/${id}`).send({
+    const locked = await saveEdit(developer, `/api/sessions/${id}`, { duplicates: 2 })
+    const editable = await saveEdit(developer, `/api/sessions/${id}`, {
       playerTitle: 'Evening listening, second week',
       playerMessage: 'Take a break halfway.',
       deadline: isoDay(clock.now(), 20),
     })
     const closed = await developer.post(`/api/sessions/${id}/close`)
-    const afterClose = await developer.patch(`/api/sessions/${id}`).send({ playerMessage: 'x' })
+    const afterClose = await saveEdit(developer, `/api/sessions/${id}`, { playerMessage: 'x' })
 
     expect(again.status).toBe(409)
     expect(beforeAnswers.status).toBe(200)

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { buildApp, signInAs, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import { addClip, addRecipe, isoDay } from './sessionFixtures'
 
 // Second takes through the session routes: the designer hears, in plain words, which recipes
@@ -96,9 +97,9 @@ describe('second takes', () => {
       format: 'rating',
     })
     expect(created.body.session.sameTakeWarnings).toEqual([])
-    const withRepeats = await developer
-      .patch(`/api/sessions/${created.body.session.id}`)
-      .send({ duplicates: 1 })
+    const withRepeats = await saveEdit(developer, `/api/sessions/${created.body.session.id}`, {
+      duplicates: 1,
+    })
     expect(withRepeats.body.session.sameTakeWarnings).toHaveLength(1)
   })
 

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { buildApp, signInAs, uniqueEmail, type Agent, type TestApp } from './helpers'
+import { saveEdit } from './editing'
 import { addClip, addRecipe, isoDay, studyFixture } from './sessionFixtures'
 import { hasVisibleCharacter, VISIBLE_MESSAGE } from '../../shared/schemas/visibleText'
 import { playerCsvRow } from '../../shared/schemas/panel'
@@ -228,8 +229,8 @@ describe('changes and other typed names', () => {
     const recipeId = await addRecipe(t.knex, 'Kept')
     const keptName = (await t.knex('recipes').where({ id: recipeId }).first('name')).name
 
-    const renamed = await admin.patch(`/api/panel/players/${id}`).send({ name: '\u200b\u200b' })
-    const recipeRenamed = await developer.patch(`/api/recipes/${recipeId}`).send({ name: '\u2060' })
+    const renamed = await saveEdit(admin, `/api/panel/players/${id}`, { name: '\u200b\u200b' })
+    const recipeRenamed = await saveEdit(developer, `/api/recipes/${recipeId}`, { name: '\u2060' })
 
     expect(renamed.status).toBe(422)
     expect(renamed.body.error.fields.name).toEqual([VISIBLE_MESSAGE])
@@ -242,12 +243,10 @@ describe('changes and other typed names', () => {
   it('refuses blank performer and instrument codes of a clip', async () => {
     const clipId = await addClip(t.knex, await addRecipe(t.knex, 'Coded'))
 
-    const performer = await developer
-      .patch(`/api/clips/${clipId}`)
-      .send({ performerCode: '\u200b' })
-    const instrument = await developer
-      .patch(`/api/clips/${clipId}`)
-      .send({ instrumentCode: '\u202e' })
+    const performer = await saveEdit(developer, `/api/clips/${clipId}`, { performerCode: '\u200b' })
+    const instrument = await saveEdit(developer, `/api/clips/${clipId}`, {
+      instrumentCode: '\u202e',
+    })
 
     expect(performer.status).toBe(422)
     expect(performer.body.error.fields.performerCode[0]).toBe(VISIBLE_MESSAGE)

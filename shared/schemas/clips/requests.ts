@@ -2,6 +2,7 @@ import { z } from 'zod'
 import { ARCHIVED_FILTERS, LIMITS } from '../../constants'
 import { isoDate } from '../common'
 import { visibleText } from '../visibleText'
+import { namesAChange, revision } from '../revision'
 import { CLIP_KINDS, CLIP_LIMITS } from './vocabulary'
 
 // What the clip pages send: one upload, an edit, the list filter and a manifest's rows.
@@ -73,8 +74,9 @@ export const updateClipBody = z
     recordedOn: clipFields.recordedOn.optional(),
     kind: clipFields.kind.optional(),
     notes: clipFields.notes.optional(),
+    revision,
   })
-  .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
+  .refine(namesAChange, 'Nothing to change')
 export type UpdateClipBody = z.input<typeof updateClipBody>
 
 export const listClipsQuery = z.object({

@@ -36,6 +36,8 @@ export interface Clip extends ClipMeasures {
   recordedOn: string | null
   kind: ClipKind
   notes: string
+  /** Moves on with every change of its fields or archiving; an edit sends the one it loaded. */
+  revision: number
   /** Set when archived: hidden from lists and pickers, kept for the sessions that use it. */
   archivedAt: string | null
   originalName: string

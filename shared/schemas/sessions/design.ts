@@ -2,6 +2,7 @@ import { z } from 'zod'
 import { LIMITS } from '../../constants'
 import { isoDate } from '../common'
 import { visibleText } from '../visibleText'
+import { namesAChange, revision } from '../revision'
 import { attributeSpec, DEFAULT_ATTRIBUTES } from './attributes'
 
 // What a session is: its format and status, and the design a developer sends to make or
@@ -120,8 +121,9 @@ export const updateSessionBody = z
     deadline: sessionDesignFields.deadline.optional(),
     reminderDaysBefore: sessionDesignFields.reminderDaysBefore.optional(),
     timePointLabel: timePointLabel.nullable().optional(),
+    revision,
   })
-  .refine((b) => Object.keys(b).length > 0, 'Nothing to change')
+  .refine(namesAChange, 'Nothing to change')
 export type UpdateSessionBody = z.infer<typeof updateSessionBody>
 
 /** Fields that shape the players' plans: frozen once anyone has answered. */

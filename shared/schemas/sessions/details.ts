@@ -98,4 +98,6 @@ export interface SessionDetail extends SessionSummary {
   timePoints: TimePoint[]
   openedAt: string | null
   closedAt: string | null
+  /** Moves on with every change (design, opening, closing); an edit sends the one it loaded. */
+  revision: number
 }
