@@ -1,7 +1,6 @@
 import { isMainThread } from 'node:worker_threads'
 import workerpool from 'workerpool'
 import { findingsTask } from './findingsTask'
-import { measureClipTask, renderSetTask } from './clipTasks'
 
 /**
  * Everything the worker threads can be asked to do, by name. Each task takes and returns plain
@@ -9,8 +8,6 @@ import { measureClipTask, renderSetTask } from './clipTasks'
  */
 export const tasks = {
   findings: findingsTask,
-  measureClip: measureClipTask,
-  renderSet: renderSetTask,
 }
 
 export type Tasks = typeof tasks
