@@ -9,18 +9,22 @@ import { mediaFolders, removeMedia, type MediaFolders } from './storage'
 import { discardChanges, renderChanges, replacedFiles, type RenditionChange } from './renditions'
 import { loadSetMembers, renditionColumns, type SetKey, type SetMember } from './setMembers'
 import type { ResolvedFields } from './fields'
+import type { WorkerPool } from '../workers/pool'
 
 /** What clip storage needs; the demo seed builds it without an HTTP app. */
 export interface ClipDeps {
   knex: Knex
   folders: MediaFolders
   clock: Clock
+  /** Where decoding, measuring and rendition writing run; on this thread when absent. */
+  pool?: WorkerPool
 }
 
 export const clipDeps = (ctx: AppContext): ClipDeps => ({
   knex: ctx.knex,
   folders: mediaFolders(ctx.config.mediaDir),
   clock: ctx.clock,
+  pool: ctx.pool,
 })
 
 // Set gains depend on every member of a set, so changes to sets run one at a time.
@@ -51,7 +55,11 @@ export async function withBalancedSets<T>(
   write: (trx: Knex.Transaction, changes: RenditionChange[]) => Promise<T>,
 ): Promise<T> {
   const existing = await loadSetMembers(deps.knex, keys, change.excludeIds)
-  const changes = await renderChanges(deps.folders, [...existing, ...(change.extra ?? [])])
+  const changes = await renderChanges(
+    deps.folders,
+    [...existing, ...(change.extra ?? [])],
+    deps.pool,
+  )
   let result: T
   try {
     result = await deps.knex.transaction(async (trx) => {

@@ -21,6 +21,8 @@ import { clipQuery, toClip, type ClipRow } from './rows'
 import { fieldColumns } from './columns'
 import { clipDeps, keyOf, serialised, withBalancedSets, type ClipDeps } from './balance'
 import type { Clip, ClipUploadFields } from '../../shared/schemas/clips'
+import type { WorkerPool } from '../workers/pool'
+import { valueOf } from '../workers/outcome'
 
 /** One recording checked and measured, ready to be stored. */
 export interface PreparedClip {
@@ -104,11 +106,20 @@ export function uploadProblem(file: UploadedFile): string | null {
   return fileNameProblem(file.name) ?? contentTypeProblem(file.mimeType)
 }
 
-/** Measures an upload; a refusal names the file and the reason. */
-export async function measureUpload(file: UploadedFile, kind: ClipUploadFields['kind']) {
+/**
+ * Measures an upload; a refusal names the file and the reason. Decoding and measuring a long
+ * take costs seconds of work, so it runs in the worker pool when one is given.
+ */
+export async function measureUpload(
+  file: UploadedFile,
+  kind: ClipUploadFields['kind'],
+  pool?: WorkerPool,
+): Promise<Measured> {
   const problem = uploadProblem(file)
   if (problem) throw new RecordingRefused(problem)
-  // Measured from its file on disk, read in blocks: the upload is never held whole.
+  // Measured from its file on disk, read in blocks: the upload is never held whole, nor copied
+  // to the thread.
+  if (pool) return valueOf(await pool.run('measureClip', file.path, kind))
   return measureRecording(file.path, kind)
 }
 
@@ -121,7 +132,7 @@ export async function uploadClip(
   const fields = await resolveClipFields(ctx.knex, body)
   let measured: Measured
   try {
-    measured = await measureUpload(file, body.kind)
+    measured = await measureUpload(file, body.kind, ctx.pool)
   } catch (err) {
     if (!(err instanceof RecordingRefused)) throw err
     throw validationFailed(`${err.message} Nothing was stored.`, {

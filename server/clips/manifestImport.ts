@@ -113,7 +113,7 @@ export async function importClipManifest(
       // column should not cost the measuring of every recording first.
       if (fields && errors.length === 0) {
         try {
-          const measured = await measureUpload(matches[0], row.kind)
+          const measured = await measureUpload(matches[0], row.kind, ctx.pool)
           prepared.push({
             fields,
             originalName: row.file,

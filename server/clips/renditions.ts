@@ -25,9 +25,19 @@ import {
   type MediaFolders,
 } from './storage'
 import { setKeyId, type RenditionFacts, type SetMember } from './setMembers'
+import type { WorkerPool } from '../workers/pool'
+import { valueOf } from '../workers/outcome'
 
 export interface RenditionChange {
   member: SetMember
+  gainDb: number
+  file: string
+  facts: RenditionFacts
+}
+
+/** A change as a worker thread reports it: the member by its place in the set it was given. */
+export interface RenderedMember {
+  index: number
   gainDb: number
   file: string
   facts: RenditionFacts
@@ -79,17 +89,25 @@ async function writtenLevel(
  * at one measured level, and writes a new rendition for every member that has none, or whose
  * format, gain or level moved. Files are only added here; the caller records them and removes
  * the replaced ones after its commit. If any rendering fails, the files already written are
- * removed before the error goes on.
+ * removed before the error goes on. Each set is decoded, measured and written in the worker
+ * pool when one is given, so a long take never holds up the requests of others.
  */
 export async function renderChanges(
   folders: MediaFolders,
   members: readonly SetMember[],
+  pool?: WorkerPool,
 ): Promise<RenditionChange[]> {
   const bySet = new Map<string, SetMember[]>()
   for (const m of members) bySet.set(setKeyId(m.key), [...(bySet.get(setKeyId(m.key)) ?? []), m])
   const changes: RenditionChange[] = []
   try {
-    for (const set of bySet.values()) changes.push(...(await renderSet(folders, set)))
+    for (const set of bySet.values()) {
+      const rendered = pool
+        ? valueOf(await pool.run('renderSet', folders, set))
+        : await renderSet(folders, set)
+      // A thread hands back copies; the caller knows its members by identity.
+      changes.push(...rendered.map(({ index, ...change }) => ({ member: set[index], ...change })))
+    }
   } catch (err) {
     await discardChanges(folders, changes)
     throw err
@@ -97,7 +115,14 @@ export async function renderChanges(
   return changes
 }
 
-async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<RenditionChange[]> {
+/**
+ * The renditions one set needs, written; runs in a worker thread (server/workers/clipTasks.ts).
+ * If a write fails, the files this set already wrote are removed before the error goes on.
+ */
+export async function renderSet(
+  folders: MediaFolders,
+  set: readonly SetMember[],
+): Promise<RenderedMember[]> {
   const format = chooseSetFormat(set.map((m) => m.source))
   const kept = new Map<SetMember, Float32Array[]>()
   let keptSamples = 0
@@ -118,7 +143,7 @@ async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<Rendi
   }
   const levels = matchSetLevels(inputs, CLIP_LIMITS.targetLufs, CLIP_LIMITS.ceilingDbfs)
 
-  const changes: RenditionChange[] = []
+  const changes: RenderedMember[] = []
   try {
     for (const [i, member] of set.entries()) {
       const r = member.rendition
@@ -147,7 +172,7 @@ async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<Rendi
         }),
       )
       changes.push({
-        member,
+        index: i,
         gainDb: level.gainDb,
         file,
         facts: { format, loudnessLufs: level.loudnessLufs },
@@ -155,7 +180,7 @@ async function renderSet(folders: MediaFolders, set: SetMember[]): Promise<Rendi
       await yieldToOthers()
     }
   } catch (err) {
-    await discardChanges(folders, changes)
+    await removeMedia(changes.map((c) => renditionPath(folders, c.file)))
     throw err
   }
   return changes

@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto'
-import { mkdir, readFile, rename, rm, writeFile } from 'node:fs/promises'
+import { mkdir, open, readFile, rename, rm, writeFile } from 'node:fs/promises'
 import { join, resolve } from 'node:path'
 import { CLIP_LIMITS } from '../../shared/schemas/clips'
 
@@ -35,6 +35,11 @@ const OPAQUE_NAME = /^[0-9a-f]{32}\.(wav|flac)$/
 export function opaqueName(ext: StoredContainer): string {
   return `${randomBytes(16).toString('hex')}.${ext}`
 }
+
+/** A file still being written: uploads in the incoming folder, new media beside their final name. */
+export const PART_NAME = /^[0-9a-f]{32}(\.(wav|flac))?\.part$/
+export const isOpaqueName = (name: string) => OPAQUE_NAME.test(name)
+const partOf = (path: string) => `${path}.part`
 
 function inside(folder: string, name: string): string {
   if (!OPAQUE_NAME.test(name)) throw new Error(`not a media file name: ${name}`)
@@ -76,6 +81,41 @@ export function contentTypeProblem(mimeType: string): string | null {
   return `Files sent as ${type} are not accepted; send WAV or FLAC recordings`
 }
 
+/** Flushes a file's bytes to the disk, so a power cut after what follows cannot empty it. */
+async function syncFile(path: string): Promise<void> {
+  const file = await open(path, 'r+')
+  try {
+    await file.sync()
+  } finally {
+    await file.close()
+  }
+}
+
+/** Flushes a folder's entries (a rename into it); not every system lets a folder be opened. */
+async function syncFolder(dir: string): Promise<void> {
+  try {
+    const folder = await open(dir, 'r')
+    try {
+      await folder.sync()
+    } finally {
+      await folder.close()
+    }
+  } catch {
+    // The rename stands; only its survival of a power cut is less certain on such a system.
+  }
+}
+
+/**
+ * Puts a complete file under its final name: flushed first, then renamed, which replaces the
+ * name in one step (POSIX rename), so a final name never holds a part of a file, whatever stops
+ * the process. The rows that name the file are written after this returns.
+ */
+async function placeFile(partPath: string, finalPath: string, dir: string): Promise<void> {
+  await syncFile(partPath)
+  await rename(partPath, finalPath)
+  await syncFolder(dir)
+}
+
 /** Moves a checked upload out of the temp folder; same disk, so nothing is copied. */
 export async function keepOriginal(
   folders: MediaFolders,
@@ -84,11 +124,11 @@ export async function keepOriginal(
 ): Promise<string> {
   await mkdir(folders.originals, { recursive: true })
   const name = opaqueName(container)
-  await rename(tempPath, originalPath(folders, name))
+  await placeFile(tempPath, originalPath(folders, name), folders.originals)
   return name
 }
 
-/** Writes original bytes made on the server (the demo seed) straight into the originals. */
+/** Writes original bytes made on the server (the demo seed) into the originals. */
 export async function writeOriginal(
   folders: MediaFolders,
   bytes: Uint8Array,
@@ -96,13 +136,21 @@ export async function writeOriginal(
 ): Promise<string> {
   await mkdir(folders.originals, { recursive: true })
   const name = opaqueName(container)
-  await writeFile(originalPath(folders, name), bytes, { flag: 'wx' })
+  const path = originalPath(folders, name)
+  try {
+    await writeFile(partOf(path), bytes, { flag: 'wx' })
+    await placeFile(partOf(path), path, folders.originals)
+  } catch (err) {
+    await rm(partOf(path), { force: true })
+    throw err
+  }
   return name
 }
 
 /**
  * A new rendition under a fresh name, written by `write`, which must create the file at the path
- * it is given (and not leave it half-written if it fails). Returns the name.
+ * it is given. That path is a part file beside the final name; only a complete file is renamed
+ * into place, and a part is removed when `write` fails (a full disk, say). Returns the name.
  */
 export async function writeRenditionFile(
   folders: MediaFolders,
@@ -110,7 +158,14 @@ export async function writeRenditionFile(
 ): Promise<string> {
   await mkdir(folders.renditions, { recursive: true })
   const name = opaqueName('wav')
-  await write(renditionPath(folders, name))
+  const path = renditionPath(folders, name)
+  try {
+    await write(partOf(path))
+    await placeFile(partOf(path), path, folders.renditions)
+  } catch (err) {
+    await rm(partOf(path), { force: true })
+    throw err
+  }
   return name
 }
 

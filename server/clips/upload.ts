@@ -7,6 +7,7 @@ import multer, { MulterError } from 'multer'
 import { AppError, badRequest } from '../errors'
 import { megabytes, refuseDeclaredOver, uploadTooLarge } from '../http/uploadSize'
 import type { UploadedFile } from './storage'
+import { holdFile, releaseFile } from './filesInProgress'
 
 export interface TempUploadOptions {
   /** Folder for files still being checked; it must sit on the media folder's disk. */
@@ -24,7 +25,10 @@ function tempFilesOf(res: Response): string[] {
 
 /** Deletes whatever this request wrote to the temp folder and has not moved away. */
 export function discardTempFiles(res: Response): void {
-  for (const path of tempFilesOf(res)) rmSync(path, { force: true })
+  for (const path of tempFilesOf(res)) {
+    rmSync(path, { force: true })
+    releaseFile(path)
+  }
 }
 
 /**
@@ -71,7 +75,10 @@ export function tempUpload(options: TempUploadOptions): RequestHandler {
     },
     filename: (req, _file, cb) => {
       const name = `${randomBytes(16).toString('hex')}.part`
-      tempFilesOf(req.res!).push(join(options.dir, name))
+      const path = join(options.dir, name)
+      tempFilesOf(req.res!).push(path)
+      // Until the response closes, the media sweep leaves this part alone.
+      holdFile(path)
       cb(null, name)
     },
   })

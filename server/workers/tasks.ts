@@ -1,6 +1,7 @@
 import { isMainThread } from 'node:worker_threads'
 import workerpool from 'workerpool'
 import { findingsTask } from './findingsTask'
+import { measureClipTask, renderSetTask } from './clipTasks'
 
 /**
  * Everything the worker threads can be asked to do, by name. Each task takes and returns plain
@@ -8,6 +9,8 @@ import { findingsTask } from './findingsTask'
  */
 export const tasks = {
   findings: findingsTask,
+  measureClip: measureClipTask,
+  renderSet: renderSetTask,
 }
 
 export type Tasks = typeof tasks

@@ -6,6 +6,7 @@ import { clipAnalysisFigures } from './clipAnalysis'
 import { playerPageFigures } from './playerPage'
 import { submissionFigures } from './submissions'
 import { uploadMemoryFigures } from './uploadMemory'
+import { savesDuringUploadFigures } from './savesDuringUpload'
 
 const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['findings', findingsFigures],
@@ -14,6 +15,7 @@ const suites: [string, () => Figure[] | Promise<Figure[]>][] = [
   ['player', playerPageFigures],
   ['submissions', submissionFigures],
   ['upload', uploadMemoryFigures],
+  ['saves-upload', savesDuringUploadFigures],
 ]
 
 const json = process.argv.includes('--json')

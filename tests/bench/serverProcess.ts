@@ -17,8 +17,11 @@ export async function startServer(options: {
   databaseFile: string
   mediaDir: string
   env?: Record<string, string>
+  /** Extra Node options, e.g. a profiler's. */
+  nodeArgs?: string[]
 }): Promise<ServerProcess> {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+  const args = [...(options.nodeArgs ?? []), '--import', 'tsx', 'server/index.ts']
+  const child = spawn(process.execPath, args, {
     env: {
       ...process.env,
       NODE_ENV: 'test',

@@ -18,6 +18,13 @@ const CONNECTIONS = 20
 
 type Bodies = { path: string; body: string }[]
 
+/**
+ * Requests per second over the whole run. autocannon's own average is over whole-second
+ * buckets, which for a run of a few seconds says more about where the seconds fell.
+ */
+const rateOf = (r: autocannon.Result) =>
+  r.requests.total / ((r.finish.getTime() - r.start.getTime()) / 1000)
+
 /** Sends every save once over 20 connections and reports what the load generator saw. */
 async function send(base: string, bodies: Bodies) {
   let next = 0
@@ -46,7 +53,7 @@ async function bareRate(bodies: Bodies): Promise<number> {
   })
   try {
     await waitForHealth(`http://127.0.0.1:${BARE_PORT}`, 200)
-    return (await send(`http://127.0.0.1:${BARE_PORT}`, bodies)).requests.average
+    return rateOf(await send(`http://127.0.0.1:${BARE_PORT}`, bodies))
   } finally {
     child.kill('SIGTERM')
     await new Promise((r) => child.once('exit', r))
@@ -80,13 +87,14 @@ export async function submissionFigures(): Promise<Figure[]> {
     const result = await send(server.base, bodies)
     const bareAfter = await bareRate(bodies)
     const bare = (bareBefore + bareAfter) / 2
+    const rate = rateOf(result)
 
     const lost =
       bodies.length - (await storedAnswers(knex, sessionId)) + result.non2xx + result.errors
     return [
       {
         name: `rating submissions (${bodies.length} saves, ${CONNECTIONS} connections)`,
-        value: round(result.requests.average, 0),
+        value: round(rate, 0),
         unit: 'per second',
         target: '>= 1500',
         better: 'higher',
@@ -100,7 +108,7 @@ export async function submissionFigures(): Promise<Figure[]> {
       },
       {
         name: 'rating submissions against a bare Express route (same client, same run)',
-        value: round((100 * result.requests.average) / bare, 0),
+        value: round((100 * rate) / bare, 0),
         unit: `% (bare route ${round(bare, 0)} per second)`,
         target: '>= 60',
         better: 'higher',
