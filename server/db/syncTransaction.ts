@@ -5,9 +5,11 @@ interface RawStatement {
   get(...params: unknown[]): unknown
   run(...params: unknown[]): { changes: number }
 }
-interface RawConnection {
+export interface RawConnection {
   prepare(sql: string): RawStatement
-  transaction<T>(fn: () => T): { immediate(): T }
+  /** Called plainly inside another transaction, it runs as a savepoint. */
+  transaction<T>(fn: () => T): { (): T; immediate(): T }
+  readonly inTransaction: boolean
   pragma(source: string, options: { simple: true }): unknown
 }
 
@@ -53,7 +55,8 @@ export async function syncRead<T>(knex: Knex, fn: (db: SyncDb) => T): Promise<T>
   return withConnection(knex, (_conn, db) => fn(db))
 }
 
-async function withConnection<T>(
+/** Runs `fn` on knex's own connection, acquired and released around it. */
+export async function withConnection<T>(
   knex: Knex,
   fn: (conn: RawConnection, db: SyncDb) => T,
 ): Promise<T> {

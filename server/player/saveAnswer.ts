@@ -7,7 +7,7 @@ import {
   STILL_OPEN_SQL,
   type StillOpenRow,
 } from './access'
-import { syncTransaction } from '../db/syncTransaction'
+import { groupCommit } from '../db/groupCommit'
 import { plannedTrials } from './plan'
 import type { GivenAnswer } from '../formats/index.ts'
 import { answerProblems } from '../formats/answers'
@@ -48,8 +48,9 @@ export async function saveAnswer(
     throw validationFailed('This answer does not fit the trial', { fields: problems })
   const payload = JSON.stringify(storedAnswer(trial, answer))
 
-  // One synchronous transaction: the busiest write path holds the connection for the least time.
-  return syncTransaction(ctx.knex, (db) => {
+  // Synchronous, so the busiest write path holds the connection for the least time; saves that
+  // arrive together share one commit (groupCommit.ts), and each is answered once it is on disk.
+  return groupCommit(ctx.knex, (db) => {
     checkStillOpen(db.get<StillOpenRow>(STILL_OPEN_SQL, access.inv.id), access, now)
     const { inv } = access
     // This trial's stored answer and the player's count in one read.
