@@ -3,7 +3,6 @@ import { fileURLToPath } from 'node:url'
 import express, { type Express } from 'express'
 import helmet from 'helmet'
 import cookieParser from 'cookie-parser'
-import { pinoHttp } from 'pino-http'
 import pino from 'pino'
 import { systemClock } from './clock'
 import type { AppContext, AppDeps } from './context'
@@ -11,7 +10,7 @@ import { createOutbox } from './mail/outbox'
 import { createWorkerPool } from './workers/pool'
 import { authenticate } from './http/authenticate'
 import { errorHandler } from './http/errorHandler'
-import { redactUrl } from './http/redact'
+import { requestLog } from './http/requestLog'
 import { sessionGuard } from './http/sessionAccess'
 import { sameOriginWrites } from './http/sameOrigin'
 import { notFound } from './errors'
@@ -95,6 +94,9 @@ export function createApp(
 
   const app = express() as unknown as RingdownApp
   app.disable('x-powered-by')
+  // API answers are never stored (no-store below), so an ETag, a hash of every body, only costs
+  // time; static files get theirs from express.static, which does not read this setting.
+  app.set('etag', false)
   app.set('trust proxy', 'loopback')
   // First, so that the time of everything below is counted.
   const metrics = createMetrics(ctx, { token: deps.metricsToken })
@@ -113,21 +115,7 @@ export function createApp(
       },
     }),
   )
-  app.use(
-    pinoHttp({
-      logger,
-      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
-      // One short line per request; headers (cookies and tokens among them) stay out of the
-      // log, and so does anything in the URL that works as a credential.
-      serializers: {
-        req: (req: { method: string; url: string }) => ({
-          method: req.method,
-          url: redactUrl(req.url),
-        }),
-        res: (res: { statusCode: number }) => ({ status: res.statusCode }),
-      },
-    }),
-  )
+  app.use(requestLog(logger))
   app.use('/api', sameOriginWrites(deps.config.publicUrl))
   // API answers carry people's names, addresses and results: no shared or stored copies unless
   // a route says otherwise (audio sets its own).

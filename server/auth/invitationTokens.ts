@@ -43,6 +43,29 @@ export function signInvitation(
  * working, one moved earlier ends them, and an unchanged one ends them at the token's exp.
  */
 export function verifyInvitation(secret: string, token: string): InvitationClaims | null {
+  if (secret !== verifiedUnder) {
+    verified.clear()
+    verifiedUnder = secret
+  }
+  const known = verified.get(token)
+  if (known) return known
+  const claims = checkSignature(secret, token)
+  if (claims) {
+    verified.set(token, claims)
+    if (verified.size > VERIFIED_KEPT) verified.delete(verified.keys().next().value!)
+  }
+  return claims
+}
+
+// Checking the signature costs more than the rest of an answer save's checks together, and a
+// player sends the same link with every save. Under one secret a given string always verifies
+// the same way (the claims are read from it, and revocation is the stored token id, checked by
+// the caller every time), so good links are kept; bad ones are not, so junk cannot crowd out.
+const VERIFIED_KEPT = 5000
+const verified = new Map<string, InvitationClaims>()
+let verifiedUnder = ''
+
+function checkSignature(secret: string, token: string): InvitationClaims | null {
   try {
     const claims = jwt.verify(token, secretKey(secret), {
       algorithms: ['HS256'],

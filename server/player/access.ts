@@ -6,6 +6,8 @@ import { resolvePlayerLink } from './landing'
 import { loadSession, type SessionRow } from '../sessions/rows'
 import { syncRead } from '../db/syncTransaction'
 import type { InvitationDbRow } from '../invitations/rows'
+import { readStanding, type HeadphoneStanding } from './headphoneGate'
+import { hasHeadphoneCheck } from './headphoneRecord'
 
 /** The invitation row with the player's steps before the trials. */
 export interface PlayerInvitationRow extends InvitationDbRow {
@@ -43,16 +45,25 @@ export async function openForAnswers(ctx: AppContext, token: string): Promise<Pl
 /**
  * The answer path's version of openForAnswers: one synchronous read when all is well (the
  * common case, hundreds of times a second at peak); anything unusual falls back to the full
- * check, which says exactly what is wrong with the link.
+ * check, which says exactly what is wrong with the link. The same read also fetches the
+ * headphone check's standing for sessions that have one, so a save needs no second read;
+ * `headphone` is undefined when it was not read (no check in this format, or the fallback).
  */
-export async function openForAnswersQuickly(ctx: AppContext, token: string): Promise<PlayerAccess> {
+export async function openForAnswersQuickly(
+  ctx: AppContext,
+  token: string,
+): Promise<PlayerAccess & { headphone?: HeadphoneStanding }> {
   const claims = verifyInvitation(ctx.config.jwtSecret, token)
   if (claims) {
     const found = await syncRead(ctx.knex, (db) => {
       const inv = db.get<PlayerInvitationRow>('select * from invitations where id = ?', claims.sub)
       const session =
         inv && db.get<SessionRow>('select * from sessions where id = ?', inv.session_id)
-      return inv && session ? { inv, session } : null
+      if (!inv || !session) return null
+      const headphone = hasHeadphoneCheck(session.format)
+        ? (readStanding(db, inv.id) ?? { passed: null, attempts: null })
+        : undefined
+      return { inv, session, headphone }
     })
     if (
       found &&

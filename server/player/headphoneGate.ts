@@ -7,7 +7,7 @@
  */
 import type { Knex } from 'knex'
 import { conflict } from '../errors'
-import { syncRead } from '../db/syncTransaction'
+import { syncRead, type SyncDb } from '../db/syncTransaction'
 import type { SessionRow } from '../sessions/rows'
 import { hasHeadphoneCheck, isFinished, statusOf } from './headphoneRecord'
 
@@ -31,9 +31,19 @@ export async function assertHeadphoneFinished(
   invitationId: number,
 ): Promise<void> {
   if (!hasHeadphoneCheck(session.format)) return
-  const standing = await syncRead(knex, (db) =>
-    db.get<{ passed: number | null; attempts: number | null }>(STANDING_SQL, invitationId),
-  )
+  assertStandingFinished(await syncRead(knex, (db) => readStanding(db, invitationId)))
+}
+
+export interface HeadphoneStanding {
+  passed: number | null
+  attempts: number | null
+}
+
+/** The standing alone, for a caller that reads it beside other rows in one go. */
+export const readStanding = (db: SyncDb, invitationId: number) =>
+  db.get<HeadphoneStanding>(STANDING_SQL, invitationId)
+
+export function assertStandingFinished(standing: HeadphoneStanding | undefined): void {
   const status = statusOf(Boolean(standing?.passed), Number(standing?.attempts ?? 0))
   if (!isFinished(status)) throw conflict(HEADPHONE_FIRST)
 }

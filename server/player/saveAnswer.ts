@@ -13,7 +13,7 @@ import type { GivenAnswer } from '../formats/index.ts'
 import { answerProblems } from '../formats/answers'
 import { sameAnswer, storedAnswer } from '../answers/stored'
 import { designOf } from '../sessions/rows'
-import { assertHeadphoneFinished } from './headphoneGate'
+import { assertHeadphoneFinished, assertStandingFinished } from './headphoneGate'
 import type { SaveAnswerResult } from '../../shared/schemas/rating'
 
 /**
@@ -32,7 +32,8 @@ export async function saveAnswer(
   const now = ctx.clock.now()
   const { session } = access
   // Before anything about the trials: a player who skipped the check learns nothing more.
-  await assertHeadphoneFinished(ctx.knex, session, access.inv.id)
+  if (access.headphone) assertStandingFinished(access.headphone)
+  else await assertHeadphoneFinished(ctx.knex, session, access.inv.id)
   // Checking the answer needs no lock: the plan is fixed once anyone has answered.
   const trials = await plannedTrials(ctx.knex, session, access.inv)
   const trial = trials[trialIndex]

@@ -50,6 +50,15 @@ describe('the API shell', () => {
     expect(res.headers['x-powered-by']).toBeUndefined()
     expect(res.headers['content-security-policy']).toBeDefined()
   })
+
+  it('marks API answers as never stored, with no ETag to revalidate them by', async () => {
+    const admin = await signInAs(t.app, 'admin')
+    const res = await admin.get('/api/recipes')
+
+    expect(res.status).toBe(200)
+    expect(res.headers['cache-control']).toBe('no-store')
+    expect(res.headers.etag).toBeUndefined()
+  })
 })
 
 describe('an unexpected failure', () => {
