@@ -101,19 +101,38 @@ export function createApp(
   // First, so that the time of everything below is counted.
   const metrics = createMetrics(ctx, { token: deps.metricsToken })
   app.use(metrics.middleware)
-  app.use(
-    helmet({
-      contentSecurityPolicy: {
-        directives: {
-          'img-src': ["'self'", 'data:', 'blob:'],
-          'media-src': ["'self'", 'blob:'],
-          'font-src': ["'self'", 'data:'],
-          'style-src': ["'self'", "'unsafe-inline'"],
-          // Plain http on localhost in development must not be upgraded.
-          'upgrade-insecure-requests': deps.config.env === 'production' ? [] : null,
-        },
+  // Pages get the full set of browser protections. API answers are JSON (and audio), never a
+  // document: they get the set the OWASP REST Security Cheat Sheet gives for APIs (a CSP that
+  // allows nothing and no framing, nosniff, HSTS, framing refused, no referrer, same-origin
+  // resources). The document-only headers add nothing to JSON and are a third of every answer
+  // save's bytes on the wire.
+  const pageHeaders = helmet({
+    contentSecurityPolicy: {
+      directives: {
+        'img-src': ["'self'", 'data:', 'blob:'],
+        'media-src': ["'self'", 'blob:'],
+        'font-src': ["'self'", 'data:'],
+        'style-src': ["'self'", "'unsafe-inline'"],
+        // Plain http on localhost in development must not be upgraded.
+        'upgrade-insecure-requests': deps.config.env === 'production' ? [] : null,
       },
-    }),
+    },
+  })
+  const apiHeaders = helmet({
+    contentSecurityPolicy: {
+      useDefaults: false,
+      directives: { 'default-src': ["'none'"], 'frame-ancestors': ["'none'"] },
+    },
+    xFrameOptions: { action: 'deny' },
+    crossOriginOpenerPolicy: false,
+    originAgentCluster: false,
+    xDnsPrefetchControl: false,
+    xDownloadOptions: false,
+    xPermittedCrossDomainPolicies: false,
+    xXssProtection: false,
+  })
+  app.use((req, res, next) =>
+    (req.url.startsWith('/api/') ? apiHeaders : pageHeaders)(req, res, next),
   )
   app.use(requestLog(logger))
   app.use('/api', sameOriginWrites(deps.config.publicUrl))

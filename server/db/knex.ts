@@ -80,6 +80,40 @@ class ImmediateClient extends BetterSqlite3Client {
   override transaction(...args: unknown[]) {
     return new ImmediateTransaction(this, ...args) as unknown as Knex.Transaction
   }
+
+  // Who holds the one connection. Taking it from the pool costs more than a short synchronous
+  // read or write on it (tarn's promises and timers, twice per answer save), and synchronous
+  // work cannot interleave with anything: so when nothing holds the connection, that work may
+  // use it directly (see idleConnection and syncTransaction.ts).
+  private held = 0
+  private last: SyncConnection | undefined
+
+  override async acquireConnection() {
+    const conn = (await super.acquireConnection()) as SyncConnection
+    this.held++
+    this.last = conn
+    return conn
+  }
+
+  override releaseConnection(conn: unknown) {
+    this.held--
+    return super.releaseConnection(conn)
+  }
+
+  /**
+   * The connection, when no query, transaction or migration holds it (a knex transaction holds
+   * it from BEGIN to COMMIT, across its awaits), for work that is done before this call returns.
+   * Undefined otherwise: the caller then waits its turn in the pool.
+   */
+  idleConnection(): SyncConnection | undefined {
+    const conn = this.last
+    return this.held === 0 && conn?.open && !conn.inTransaction ? conn : undefined
+  }
+}
+
+interface SyncConnection {
+  readonly open: boolean
+  readonly inTransaction: boolean
 }
 
 interface Connection {

@@ -63,15 +63,21 @@ export async function withConnection<T>(
   const client = knex.client as unknown as {
     acquireConnection(): Promise<RawConnection>
     releaseConnection(conn: RawConnection): Promise<unknown>
+    /** createKnex's client has it: the connection when nothing holds it (knex.ts). */
+    idleConnection?(): RawConnection | undefined
   }
+  // Nothing can come between here and the end of fn: it is synchronous.
+  const idle = client.idleConnection?.()
+  if (idle) return fn(idle, syncDb(idle))
   const conn = await client.acquireConnection()
   try {
-    const db: SyncDb = {
-      get: <R>(sql: string, ...params: unknown[]) => conn.prepare(sql).get(...params) as R,
-      run: (sql, ...params) => conn.prepare(sql).run(...params).changes,
-    }
-    return fn(conn, db)
+    return fn(conn, syncDb(conn))
   } finally {
     await client.releaseConnection(conn)
   }
 }
+
+const syncDb = (conn: RawConnection): SyncDb => ({
+  get: <R>(sql: string, ...params: unknown[]) => conn.prepare(sql).get(...params) as R,
+  run: (sql, ...params) => conn.prepare(sql).run(...params).changes,
+})

@@ -51,6 +51,26 @@ describe('the API shell', () => {
     expect(res.headers['content-security-policy']).toBeDefined()
   })
 
+  // API answers are JSON, never a document: the OWASP REST Security Cheat Sheet's set for APIs
+  // (CSP allowing nothing and no framing, nosniff, HSTS, X-Frame-Options DENY); referrer and
+  // cross-origin resource policies as on pages. Pages keep the full set.
+  it('gives API answers the security headers of an API, and pages the full set', async () => {
+    const api = await request(t.app).get('/api/health')
+    expect(api.headers['content-security-policy']).toBe("default-src 'none';frame-ancestors 'none'")
+    expect(api.headers).toMatchObject({
+      'x-content-type-options': 'nosniff',
+      'x-frame-options': 'DENY',
+      'referrer-policy': 'no-referrer',
+      'cross-origin-resource-policy': 'same-origin',
+    })
+    expect(api.headers['strict-transport-security']).toMatch(/^max-age=\d+/)
+
+    const page = await request(t.app).get('/metrics')
+    expect(page.headers['content-security-policy']).toContain("default-src 'self'")
+    expect(page.headers['cross-origin-opener-policy']).toBe('same-origin')
+    expect(page.headers['x-frame-options']).toBe('SAMEORIGIN')
+  })
+
   it('marks API answers as never stored, with no ETag to revalidate them by', async () => {
     const admin = await signInAs(t.app, 'admin')
     const res = await admin.get('/api/recipes')

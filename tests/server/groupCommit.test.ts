@@ -5,6 +5,7 @@ import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import type { Knex } from 'knex'
 import { createKnex } from '../../server/db/knex'
 import { groupCommit, MAX_BATCH } from '../../server/db/groupCommit'
+import { syncRead } from '../../server/db/syncTransaction'
 
 // Group commit: writes that arrive together share one transaction and one flush, each in its
 // own savepoint. What must hold is what a single transaction per write gave: every resolved
@@ -34,24 +35,35 @@ afterEach(async () => {
 const insert = (n: number) =>
   groupCommit(knex, (db) => db.run('insert into notes (n) values (?)', n))
 
-/** Counts the connection acquisitions, one per transaction here. */
-function countAcquisitions(k: Knex): { count: number } {
-  const client = k.client as { acquireConnection(): Promise<unknown> }
-  const original = client.acquireConnection.bind(client)
+/** Counts the transactions begun on the connection (each batch begins one, IMMEDIATE). */
+async function countTransactions(k: Knex): Promise<{ count: number }> {
+  type Tx = { (): unknown; immediate(): unknown }
+  const client = k.client as {
+    acquireConnection(): Promise<{ transaction(fn: () => unknown): Tx }>
+    releaseConnection(conn: unknown): Promise<unknown>
+  }
+  const conn = await client.acquireConnection()
+  await client.releaseConnection(conn)
+  const original = conn.transaction.bind(conn)
   const counter = { count: 0 }
-  client.acquireConnection = () => {
-    counter.count++
-    return original()
+  conn.transaction = (fn) => {
+    const tx = original(fn)
+    return Object.assign(() => tx(), {
+      immediate: () => {
+        counter.count++
+        return tx.immediate()
+      },
+    })
   }
   return counter
 }
 
 describe('group commit', () => {
   it('stores writes sent together in one transaction, each answered with its own result', async () => {
-    const acquired = countAcquisitions(knex)
+    const begun = await countTransactions(knex)
     const results = await Promise.all(Array.from({ length: 50 }, (_, i) => insert(i)))
     expect(results).toEqual(Array(50).fill(1))
-    expect(acquired.count).toBe(1)
+    expect(begun.count).toBe(1)
     expect(await other('notes').count({ c: '*' })).toEqual([{ c: 50 }])
   })
 
@@ -113,9 +125,22 @@ describe('group commit', () => {
   })
 
   it(`takes at most ${MAX_BATCH} writes per commit and runs the rest in the next`, async () => {
-    const acquired = countAcquisitions(knex)
+    const begun = await countTransactions(knex)
     await Promise.all(Array.from({ length: MAX_BATCH + 10 }, (_, i) => insert(i)))
-    expect(acquired.count).toBe(2)
+    expect(begun.count).toBe(2)
     expect(await other('notes').count({ c: '*' })).toEqual([{ c: MAX_BATCH + 10 }])
+  })
+
+  it('waits for a knex transaction that holds the connection, and never writes inside it', async () => {
+    const trx = await knex.transaction()
+    await trx('notes').insert({ n: 1 })
+    const write = insert(2)
+    const read = syncRead(knex, (db) => db.get<{ c: number }>('select count(*) as c from notes'))
+    // Several turns of the event loop: the batch would have run by now had it not waited.
+    for (let i = 0; i < 5; i++) await new Promise((r) => setImmediate(r))
+    await trx.rollback()
+    await write
+    expect(await read).toEqual({ c: 0 })
+    expect((await other('notes').select('n')).map((r) => r.n)).toEqual([2])
   })
 })
