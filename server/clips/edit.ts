@@ -7,7 +7,7 @@ import type { AppContext } from '../context'
 import { notFound } from '../errors'
 import { recordAudit, type Actor } from '../audit/service'
 import { originalPath, removeMedia, renditionPath } from './storage'
-import { measureColumns, measureRecording } from './measure'
+import { measureColumns, measureFile } from './measure'
 import { memberOfRow, setKeyId } from './setMembers'
 import { resolveClipFields, type ResolvedFields } from './fields'
 import { fieldColumns, fieldsOfRow, type StoredRow } from './columns'
@@ -56,7 +56,7 @@ export function updateClip(
     const remeasured =
       after.kind !== before.kind
         ? measureColumns(
-            await measureRecording(originalPath(deps.folders, row.original_file), after.kind),
+            await measureFile(originalPath(deps.folders, row.original_file), after.kind, ctx.pool),
           )
         : {}
     const write = async (trx: Knex.Transaction) => {

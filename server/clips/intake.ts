@@ -14,7 +14,7 @@ import {
   writeOriginal,
   type UploadedFile,
 } from './storage'
-import { measureColumns, measureRecording, RecordingRefused, type Measured } from './measure'
+import { measureColumns, measureFile, RecordingRefused, type Measured } from './measure'
 import { renditionColumns, sourceOfRow, type SetMember } from './setMembers'
 import { resolveClipFields, type ResolvedFields } from './fields'
 import { clipQuery, toClip, type ClipRow } from './rows'
@@ -22,7 +22,6 @@ import { fieldColumns } from './columns'
 import { clipDeps, keyOf, serialised, withBalancedSets, type ClipDeps } from './balance'
 import type { Clip, ClipUploadFields } from '../../shared/schemas/clips'
 import type { WorkerPool } from '../workers/pool'
-import { valueOf } from '../workers/outcome'
 
 /** One recording checked and measured, ready to be stored. */
 export interface PreparedClip {
@@ -119,8 +118,7 @@ export async function measureUpload(
   if (problem) throw new RecordingRefused(problem)
   // Measured from its file on disk, read in blocks: the upload is never held whole, nor copied
   // to the thread.
-  if (pool) return valueOf(await pool.run('measureClip', file.path, kind))
-  return measureRecording(file.path, kind)
+  return measureFile(file.path, kind, pool)
 }
 
 export async function uploadClip(

@@ -2,11 +2,26 @@ import { analyseClip, analyseClipFile, isAudioError, type ClipAnalysis } from '.
 import { CLIP_LIMITS, type ClipKind } from '../../shared/schemas/clips'
 import type { StoredContainer } from './storage'
 import { CLIP_MEASURES, type ClipMeasureKey } from '../../shared/measures'
+import type { WorkerPool } from '../workers/pool'
+import { valueOf } from '../workers/outcome'
 
 export interface Measured {
   analysis: ClipAnalysis
   container: StoredContainer
   loudnessLufs: number
+}
+
+/**
+ * Measures the recording in a file on disk, in the worker pool when one is given: decoding and
+ * measuring a long take costs seconds, which the event loop must not spend.
+ */
+export async function measureFile(
+  path: string,
+  kind: ClipKind,
+  pool: WorkerPool | undefined,
+): Promise<Measured> {
+  if (pool) return valueOf(await pool.run('measureClip', path, kind))
+  return measureRecording(path, kind)
 }
 
 /** A refusal of the recording itself, in words for the person who sent it. */

@@ -118,12 +118,35 @@ describe('clip work in a worker thread', () => {
     }
     expect((await rendition(threaded)).equals(await rendition(inline))).toBe(true)
 
-    console.log('GAPS', threadGap, inlineGap)
     // On the main thread the loop stops for the decode and again for the rendition; in the
     // thread it keeps turning (what is left is the upload's own reading and writing).
     expect(inlineGap).toBeGreaterThan(100)
     expect(threadGap).toBeLessThan(inlineGap / 2)
   }, 60_000)
+
+  it('measures again in the thread when an editor changes a clip to another kind', async () => {
+    const tone = synth.bowedTone({ f0: 220, seconds: 4, attackSeconds: 0.05 })
+    const made = await upload(threaded, encodeWav([tone], 48_000, { bitDepth: 16 }), 'TH-3')
+    expect(made.status).toBe(201)
+    const { id, revision } = made.body.clip
+    const pool = threaded.t.app.locals.ctx.pool
+    const asked: string[] = []
+    const run = pool.run.bind(pool)
+    pool.run = ((task: Parameters<typeof run>[0], ...args: unknown[]) => {
+      asked.push(task)
+      return (run as (...a: unknown[]) => unknown)(task, ...args)
+    }) as typeof pool.run
+    try {
+      const changed = await threaded.developer
+        .patch(`/api/clips/${id}`)
+        .send({ kind: 'plucked', revision })
+      expect(changed.status, JSON.stringify(changed.body)).toBe(200)
+      expect(changed.body.clip.kind).toBe('plucked')
+    } finally {
+      pool.run = run
+    }
+    expect(asked).toContain('measureClip')
+  })
 
   it('refuses a damaged recording with the same answer as the main thread', async () => {
     const good = encodeWav(
