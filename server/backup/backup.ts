@@ -1,5 +1,5 @@
 import { access, constants, mkdir, rename, writeFile } from 'node:fs/promises'
-import { dirname, join, resolve } from 'node:path'
+import { basename, dirname, join, resolve } from 'node:path'
 import {
   cannotWrite,
   copyWithHash,
@@ -21,6 +21,7 @@ import {
   type BackupManifest,
 } from './manifest'
 import { finishCopy, snapshotDatabase } from './sqlite'
+import { PART_NAME } from '../clips/storage'
 
 export interface BackupOptions {
   databaseFile: string
@@ -66,6 +67,8 @@ export async function createBackup(options: BackupOptions): Promise<BackupResult
     // After the database: a clip added meanwhile only leaves an unused file in the backup.
     for (const part of MEDIA_PARTS) {
       for (const name of await listFiles(join(mediaDir, part))) {
+        // Still being written: it gets its final name when complete, or the sweep removes it.
+        if (PART_NAME.test(basename(name))) continue
         const path = `media/${part}/${name}`
         const copied = await copyWithHash(join(mediaDir, part, name), join(work, path)).catch(
           (err: unknown) => {

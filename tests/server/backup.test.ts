@@ -500,6 +500,22 @@ function flipByte(path: string) {
   writeFileSync(path, bytes)
 }
 
+describe('files still being written', () => {
+  // An upload or rendition in progress is written under a part name and renamed when complete
+  // (server/clips/storage.ts); only complete files belong in a backup.
+  it('are left out of a backup', async () => {
+    const part = join(mediaFolders(live.mediaDir).originals, `${'ab'.repeat(16)}.wav.part`)
+    writeFileSync(part, 'half a take')
+    try {
+      const { manifest } = await createBackup({ ...live, targetDir: join(root, 'with-part') })
+      expect(manifest.files.some((f) => f.path.endsWith('.part'))).toBe(false)
+      expect(manifest.files.some((f) => f.path.startsWith('media/originals/'))).toBe(true)
+    } finally {
+      rmSync(part)
+    }
+  })
+})
+
 describe('checksums', () => {
   it('are SHA-256 as FIPS 180-2 defines it', async () => {
     const file = join(root, 'abc.txt')
