@@ -89,7 +89,9 @@ export function createApp(
       config: deps.config,
       logger,
     }),
-    pool: deps.pool ?? createWorkerPool(deps.config.workerThreads),
+    pool:
+      deps.pool ??
+      createWorkerPool(deps.config.workerThreads, { warmUpDatabase: deps.config.databaseFile }),
   }
 
   const app = express() as unknown as RingdownApp

@@ -154,7 +154,8 @@ async function checkMail(ctx: AppContext): Promise<Readiness['parts']['mail']> {
 
 function checkWorkers(ctx: AppContext): Readiness['parts']['workers'] {
   try {
-    const load = ctx.pool.load()
+    const { starting, ...load } = ctx.pool.load()
+    if (starting) return { status: 'failing', problem: 'the worker threads are starting', ...load }
     // A queue this long means findings and clip analysis wait seconds for a thread.
     const behind = load.waiting > Math.max(4, 2 * load.threads)
     return {

@@ -9,7 +9,7 @@ import type { ErrorCode } from '../../shared/types/api'
 // statements afresh for every request would cost more than the reading.
 const connections = new Map<string, Knex>()
 
-function connectionFor(databaseFile: string): Knex {
+export function connectionFor(databaseFile: string): Knex {
   let knex = connections.get(databaseFile)
   if (!knex) {
     knex = createKnex(databaseFile, { readOnly: true })

@@ -10,6 +10,8 @@ export interface PoolLoad {
   /** Tasks finished since start, and how many of them failed. */
   done: number
   failed: number
+  /** The threads are still loading and warming up (the server is not ready yet). */
+  starting: boolean
 }
 
 export interface WorkerPool {
@@ -30,7 +32,10 @@ const bootFile = new URL('./boot.mjs', import.meta.url).pathname
  * event loop keeps answering players. With `threads` 0 the same tasks run inline, which tests
  * on an in-memory database need and which keeps a one-core machine from paying for a thread.
  */
-export function createWorkerPool(threads: number): WorkerPool {
+export function createWorkerPool(
+  threads: number,
+  options: { warmUpDatabase?: string } = {},
+): WorkerPool {
   let done = 0
   let failed = 0
   let inlineBusy = 0
@@ -59,7 +64,7 @@ export function createWorkerPool(threads: number): WorkerPool {
           ) as Promise<never>,
         ).finally(() => inlineBusy--)
       },
-      load: () => ({ threads: 0, busy: inlineBusy, waiting: 0, done, failed }),
+      load: () => ({ threads: 0, busy: inlineBusy, waiting: 0, done, failed, starting: false }),
       async close() {},
     }
   }
@@ -72,6 +77,14 @@ export function createWorkerPool(threads: number): WorkerPool {
     // both finish in seconds.
     workerTerminateTimeout: 1000,
   })
+  // Every thread loads the code and runs the analyses once now, not on a user's first page;
+  // readiness waits for it. A warm-up that fails only leaves that thread cold.
+  let starting = true
+  void Promise.allSettled(
+    Array.from({ length: threads }, () =>
+      Promise.resolve(pool.exec('warmUp', [options.warmUpDatabase ?? null])),
+    ),
+  ).then(() => (starting = false))
   return {
     threaded: true,
     run(task, ...args) {
@@ -79,7 +92,7 @@ export function createWorkerPool(threads: number): WorkerPool {
     },
     load() {
       const s = pool.stats()
-      return { threads, busy: s.busyWorkers, waiting: s.pendingTasks, done, failed }
+      return { threads, busy: s.busyWorkers, waiting: s.pendingTasks, done, failed, starting }
     },
     async close() {
       await pool.terminate(true)

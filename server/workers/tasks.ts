@@ -2,6 +2,7 @@ import { isMainThread } from 'node:worker_threads'
 import workerpool from 'workerpool'
 import { findingsTask } from './findingsTask'
 import { measureClipTask, renderSetTask } from './clipTasks'
+import { warmUpTask } from './warmUp'
 
 /**
  * Everything the worker threads can be asked to do, by name. Each task takes and returns plain
@@ -11,6 +12,7 @@ export const tasks = {
   findings: findingsTask,
   measureClip: measureClipTask,
   renderSet: renderSetTask,
+  warmUp: warmUpTask,
 }
 
 export type Tasks = typeof tasks

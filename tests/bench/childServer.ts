@@ -1,7 +1,14 @@
-/** Waits until a server started as a child process answers its health route. */
-export async function waitForHealth(base: string, tries = 300): Promise<void> {
+/**
+ * Waits until a server started as a child process answers its health route: `/api/health`
+ * (alive) by default, or `/api/health/ready` (threads warmed up, database and media usable).
+ */
+export async function waitForHealth(
+  base: string,
+  tries = 300,
+  path = '/api/health',
+): Promise<void> {
   for (let i = 0; i < tries; i++) {
-    const ok = await fetch(`${base}/api/health`).then(
+    const ok = await fetch(`${base}${path}`).then(
       (r) => r.ok,
       () => false,
     )

@@ -38,7 +38,8 @@ export async function startServer(options: {
   const base = `http://127.0.0.1:${options.port}`
   const exited = new Promise((r) => child.once('exit', r))
   try {
-    await waitForHealth(base, 300)
+    // Ready, as a load balancer would wait for: the worker threads have warmed up.
+    await waitForHealth(base, 300, '/api/health/ready')
   } catch (err) {
     child.kill('SIGKILL')
     throw err

@@ -3,6 +3,8 @@ import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import pino from 'pino'
+import { createWorkerPool } from '../../server/workers/pool'
+import { findingsOutcome } from '../../server/workers/findingsTask'
 import { createApp, type RingdownApp } from '../../server/app'
 import { testConfig } from '../../server/config'
 import { createKnex } from '../../server/db/knex'
@@ -73,4 +75,23 @@ describe('findings in a worker thread', () => {
     expect(res.status).toBe(409)
     expect(res.body.error.message).toContain(`Answer ${damaged.id} cannot be read`)
   })
+
+  it('warm up before the server is ready, on the last answered session, caching nothing', async () => {
+    const pool = createWorkerPool(1, { warmUpDatabase: databaseFile })
+    try {
+      expect(pool.load().starting).toBe(true)
+      const started = performance.now()
+      while (pool.load().starting && performance.now() - started < 60_000)
+        await new Promise((r) => setTimeout(r, 20))
+      expect(pool.load().starting).toBe(false)
+      // The warm-up is not counted as work done for anyone.
+      expect(pool.load()).toMatchObject({ done: 0, failed: 0 })
+      // And the warmed thread answers as the main thread does.
+      expect(await pool.run('findings', databaseFile, sessionId, {})).toEqual(
+        await findingsOutcome(knex, sessionId, {}),
+      )
+    } finally {
+      await pool.close()
+    }
+  }, 90_000)
 })

@@ -40,6 +40,20 @@ describe('health and metrics', () => {
     }
   })
 
+  it('is not ready while the worker threads are still starting', async () => {
+    const fresh = await buildApp()
+    try {
+      const pool = fresh.app.locals.ctx.pool
+      const load = pool.load.bind(pool)
+      pool.load = () => ({ ...load(), starting: true })
+      const res = await request(fresh.app).get('/api/health/ready')
+      expect(res.status).toBe(503)
+      expect(res.body).toMatchObject({ status: 'not_ready', parts: { workers: 'failing' } })
+    } finally {
+      await fresh.close()
+    }
+  })
+
   it('exposes request latencies by route pattern, outbox depth and worker load', async () => {
     await request(t.app).get('/api/health').expect(200)
     const res = await request(t.app).get('/metrics').expect(200)
