@@ -1,4 +1,5 @@
 import { open, rm } from 'node:fs/promises'
+import { flushCounter } from '../lib/steadyFlush'
 import { dbToGain } from './level.ts'
 import { encodeWav, pcmWavHeader, writeSamples } from './wavEncoder.ts'
 
@@ -56,6 +57,8 @@ export async function writeRenditionWavFile(
     await writeAll(file, pcmWavHeader(channels.length, sampleRate, options.bitDepth, frames))
     const blockFrames = Math.max(1, Math.floor(WRITE_BLOCK / blockAlign))
     const block = new Uint8Array(Math.min(frames, blockFrames) * blockAlign)
+    // Flushed as it grows, so a long rendition never leaves the disk one large burst to write.
+    const flush = flushCounter()
     for (let from = 0; from < frames; from += blockFrames) {
       const to = Math.min(frames, from + blockFrames)
       const bytes = block.subarray(0, (to - from) * blockAlign)
@@ -63,6 +66,7 @@ export async function writeRenditionWavFile(
       bytes.fill(0)
       writeSamples(bytes, channels, 'pcm', options.bitDepth, gain, from, to)
       await writeAll(file, bytes)
+      if (flush.wrote(bytes.length)) await file.datasync()
     }
     if ((frames * blockAlign) & 1) await writeAll(file, new Uint8Array(1))
     await file.close()

@@ -8,6 +8,7 @@ import { AppError, badRequest } from '../errors'
 import { megabytes, refuseDeclaredOver, uploadTooLarge } from '../http/uploadSize'
 import type { UploadedFile } from './storage'
 import { holdFile, releaseFile } from './filesInProgress'
+import { flushCounter, flushFileData } from '../lib/steadyFlush'
 
 export interface TempUploadOptions {
   /** Folder for files still being checked; it must sit on the media folder's disk. */
@@ -18,6 +19,9 @@ export interface TempUploadOptions {
   batchMaxMb: number
   fields: { name: string; maxCount: number }[]
 }
+
+// The temp path each file of an upload is written to, known once multer has named it.
+const tempPathOf = new WeakMap<Express.Multer.File, string>()
 
 function tempFilesOf(res: Response): string[] {
   return ((res.locals.tempFiles as string[] | undefined) ??= [])
@@ -41,12 +45,20 @@ function countedStorage(disk: multer.StorageEngine, limit: number, refusal: () =
     _handleFile(req, file, cb) {
       const locals = req.res!.locals
       locals.uploadBytes ??= 0
+      const flush = flushCounter()
       const counted = new Transform({
         transform(chunk: Buffer, _encoding, done) {
           const total = (locals.uploadBytes as number) + chunk.length
           locals.uploadBytes = total
           if (total > limit) return done(refusal())
-          done(null, chunk)
+          const path = tempPathOf.get(file)
+          if (!flush.wrote(chunk.length) || !path) return done(null, chunk)
+          // The upload waits for the flush (the sender is slowed for a moment, not the server);
+          // one that fails is left to the final fsync, which reports it.
+          flushFileData(path).then(
+            () => done(null, chunk),
+            () => done(null, chunk),
+          )
         },
       })
       // A failure on either side ends both, as one stream would.
@@ -73,10 +85,11 @@ export function tempUpload(options: TempUploadOptions): RequestHandler {
       mkdirSync(options.dir, { recursive: true })
       cb(null, options.dir)
     },
-    filename: (req, _file, cb) => {
+    filename: (req, file, cb) => {
       const name = `${randomBytes(16).toString('hex')}.part`
       const path = join(options.dir, name)
       tempFilesOf(req.res!).push(path)
+      tempPathOf.set(file, path)
       // Until the response closes, the media sweep leaves this part alone.
       holdFile(path)
       cb(null, name)
