@@ -3,15 +3,14 @@ import { lineScaleFindings } from '../findings/lineScale'
 import { reliabilityFindings } from '../findings/reliability'
 import type { SessionPlayer } from '../findings/data'
 import { DEFAULT_ATTRIBUTES } from '../../shared/schemas/sessions/attributes'
-import { connectionFor, findingsOutcome } from './findingsTask'
+import { connectionFor } from './findingsTask'
 
 /*
- * A thread's first findings page would otherwise pay for loading the code, opening the
- * database and the engine compiling the statistics' loops: three times as long as every page
- * after it. When the pool starts, before the server says it is ready, each thread runs the
- * rating analyses once on a small invented panel and computes the findings of the session
- * answered last, through the same code as a request; both results are dropped (nothing is
- * cached, nothing written), so the first page an analyst asks for is still computed afresh.
+ * A thread's first findings page would otherwise also pay for loading the code, opening the
+ * database and the engine compiling the statistics' loops. When the pool starts, before the
+ * server says it is ready, each thread loads the code, opens its connection and runs the rating
+ * analyses once on a small invented panel. No session is read and the result is dropped: the
+ * first page an analyst asks for is still read and computed afresh.
  */
 
 const PLAYERS = 120
@@ -62,13 +61,8 @@ export async function warmUpTask(databaseFile: string | null): Promise<number> {
     attributes: lineScaleFindings(ratings, recipes, DEFAULT_ATTRIBUTES, []),
     reliability: reliabilityFindings(ratings, players),
   })
-  if (databaseFile && databaseFile !== ':memory:') {
-    const knex = connectionFor(databaseFile)
-    const last: { session_id: number } | undefined = await knex('answers as a')
-      .join('invitations as i', 'i.id', 'a.invitation_id')
-      .orderBy('a.id', 'desc')
-      .first('i.session_id')
-    if (last) await findingsOutcome(knex, last.session_id, {})
-  }
+  // The connection is opened (and SQLite's schema read) now; no session is read.
+  if (databaseFile && databaseFile !== ':memory:')
+    await connectionFor(databaseFile).raw('select count(*) from sessions')
   return performance.now() - started
 }

@@ -76,7 +76,7 @@ describe('findings in a worker thread', () => {
     expect(res.body.error.message).toContain(`Answer ${damaged.id} cannot be read`)
   })
 
-  it('warm up before the server is ready, on the last answered session, caching nothing', async () => {
+  it('warm up before the server is ready, reading no session', async () => {
     const pool = createWorkerPool(1, { warmUpDatabase: databaseFile })
     try {
       expect(pool.load().starting).toBe(true)
