@@ -1,7 +1,6 @@
 import { mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import autocannon from 'autocannon'
 import request from 'supertest'
 import { createKnex } from '../../server/db/knex'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
@@ -9,6 +8,7 @@ import { round, type Figure } from './figure'
 import { BIG, buildBigSession } from './bigSession'
 import { prepareSaves } from './playerSaves'
 import { percentile, startServer } from './serverProcess'
+import { sendSaves } from './sendSaves'
 
 const PORT = 3921
 const SAVERS = 150
@@ -82,22 +82,7 @@ export async function findingsHttpFigures(): Promise<Figure[]> {
         await new Promise((r) => setTimeout(r, 20))
       }
     })()
-    let next = 0
-    const saves = await autocannon({
-      url: server.base,
-      connections: 20,
-      amount: bodies.length,
-      requests: [
-        {
-          method: 'PUT',
-          headers: { 'content-type': 'application/json' },
-          setupRequest: (req) => {
-            const b = bodies[next++ % bodies.length]
-            return { ...req, path: b.path, body: b.body }
-          },
-        },
-      ],
-    })
+    const { result: saves } = await sendSaves(server.base, bodies, 20)
     busy = false
     await Promise.all([analystLoop, healthLoop])
 

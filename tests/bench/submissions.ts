@@ -2,7 +2,7 @@ import { spawn } from 'node:child_process'
 import { mkdtempSync, rmSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
-import autocannon from 'autocannon'
+import type autocannon from 'autocannon'
 import request from 'supertest'
 import { createKnex } from '../../server/db/knex'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
@@ -10,6 +10,7 @@ import { round, type Figure } from './figure'
 import { waitForHealth } from './childServer'
 import { prepareSaves, storedAnswers } from './playerSaves'
 import { startServer } from './serverProcess'
+import { sendSaves, type SaveBodies } from './sendSaves'
 
 // Two sessions of 500 players (a session may mail at most 600 invitations an hour by default):
 // 7,000 saves, a few seconds of load, so that a stray pause moves the rate little.
@@ -19,57 +20,15 @@ const PORT = 3917
 const BARE_PORT = 3918
 const CONNECTIONS = 20
 
-type Bodies = { path: string; body: string }[]
-
-/** What the load generator saw, with the rate over the time the answers actually took. */
-interface Sent {
-  result: autocannon.Result
-  /** Answers per second from the first request sent to the last answer received. */
-  rate: number
-}
-
-/**
- * Sends every save once over 20 connections. The rate is timed here, from the start to the
- * last answer: autocannon's own start and finish (and its average) fall on its once-a-second
- * tick, so a run of a few seconds would be rounded up to whole seconds.
- */
-async function send(base: string, bodies: Bodies): Promise<Sent> {
-  let next = 0
-  let lastAnswer = 0
-  const started = performance.now()
-  const result = await new Promise<autocannon.Result>((resolve, reject) => {
-    const instance = autocannon(
-      {
-        url: base,
-        connections: CONNECTIONS,
-        amount: bodies.length,
-        requests: [
-          {
-            method: 'PUT',
-            headers: { 'content-type': 'application/json' },
-            setupRequest: (req) => {
-              const b = bodies[next++ % bodies.length]
-              return { ...req, path: b.path, body: b.body }
-            },
-          },
-        ],
-      },
-      (err, r) => (err ? reject(err) : resolve(r)),
-    )
-    instance.on('response', () => (lastAnswer = performance.now()))
-  })
-  return { result, rate: result.requests.total / ((lastAnswer - started) / 1000) }
-}
-
 /** The same saves against a bare Express route in its own process: the yardstick. */
-async function bareRate(bodies: Bodies): Promise<number> {
+async function bareRate(bodies: SaveBodies): Promise<number> {
   const child = spawn(process.execPath, ['--import', 'tsx', 'tests/bench/bareExpress.ts'], {
     env: { ...process.env, PORT: String(BARE_PORT) },
     stdio: ['ignore', 'ignore', 'inherit'],
   })
   try {
     await waitForHealth(`http://127.0.0.1:${BARE_PORT}`, 200)
-    return (await send(`http://127.0.0.1:${BARE_PORT}`, bodies)).rate
+    return (await sendSaves(`http://127.0.0.1:${BARE_PORT}`, bodies, CONNECTIONS)).rate
   } finally {
     child.kill('SIGTERM')
     await new Promise((r) => child.once('exit', r))
@@ -112,7 +71,7 @@ async function measure(synchronous: 'FULL' | 'NORMAL', withBare: boolean): Promi
     const bodies = prepared.flatMap((p) => p.bodies)
 
     const bareBefore = withBare ? await bareRate(bodies) : 0
-    const { result, rate } = await send(server.base, bodies)
+    const { result, rate } = await sendSaves(server.base, bodies, CONNECTIONS)
     const bareAfter = withBare ? await bareRate(bodies) : 0
 
     const stored = await Promise.all(prepared.map((p) => storedAnswers(knex, p.sessionId)))

@@ -1,4 +1,3 @@
-import { spawn } from 'node:child_process'
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
@@ -7,7 +6,7 @@ import { encodeWav, synth } from '../../server/audio'
 import { DEMO_PASSWORD } from '../../server/auth/demoAccounts'
 import { createKnex } from '../../server/db/knex'
 import { round, type Figure } from './figure'
-import { waitForHealth } from './childServer'
+import { startServer } from './serverProcess'
 
 const PORT = 3919
 const RATE = 48_000
@@ -36,24 +35,12 @@ export async function uploadMemoryFigures(): Promise<Figure[]> {
   writeFileSync(small, encodeWav([left.subarray(0, 3 * RATE)], RATE, { bitDepth: 16 }))
 
   const databaseFile = join(dir, 'bench.sqlite')
-  const server = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    env: {
-      ...process.env,
-      NODE_ENV: 'test',
-      PORT: String(PORT),
-      DATABASE_FILE: databaseFile,
-      MEDIA_DIR: join(dir, 'media'),
-      JWT_SECRET: 'bench-secret-bench-secret-bench-secret',
-      RINGDOWN_API_ONLY: '1',
-    },
-    stdio: ['ignore', 'ignore', 'inherit'],
-  })
-  const base = `http://127.0.0.1:${PORT}`
-  const pid = server.pid!
+  const server = await startServer({ port: PORT, databaseFile, mediaDir: join(dir, 'media') })
+  const { base } = server
+  const pid = server.child.pid!
   const kb = (key: 'VmRSS' | 'VmHWM') =>
     Number(new RegExp(`${key}:\\s+(\\d+)`).exec(readFileSync(`/proc/${pid}/status`, 'utf8'))![1])
   try {
-    await waitForHealth(base)
     const knex = createKnex(databaseFile)
     const now = new Date().toISOString()
     const [recipeId] = await knex('recipes').insert({
@@ -112,8 +99,7 @@ export async function uploadMemoryFigures(): Promise<Figure[]> {
       },
     ]
   } finally {
-    server.kill('SIGTERM')
-    await new Promise((r) => server.once('exit', r))
+    await server.stop()
     rmSync(dir, { recursive: true, force: true })
   }
 }

@@ -1,11 +1,10 @@
-import { spawn } from 'node:child_process'
 import { mkdtempSync, rmSync } from 'node:fs'
 import { request as httpRequest } from 'node:http'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { afterAll, describe, expect, it } from 'vitest'
 import { createKnex } from '../../server/db/knex'
-import { waitForHealth } from '../bench/childServer'
+import { startServer } from '../bench/serverProcess'
 import { silentServer } from './mail/fixtures'
 
 // SIGTERM as a process manager sends it (systemd, Kubernetes and Docker wait 10 s by default
@@ -46,15 +45,11 @@ describe('SIGTERM', () => {
   it('ends the process within 10 s with SMTP hanging, answering the request in flight and keeping the mail', async () => {
     const smtp = await silentServer(true)
     const databaseFile = join(dir, 'db.sqlite')
-    const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+    const server = await startServer({
+      port: PORT,
+      databaseFile,
+      mediaDir: join(dir, 'media'),
       env: {
-        ...process.env,
-        NODE_ENV: 'test',
-        PORT: String(PORT),
-        DATABASE_FILE: databaseFile,
-        MEDIA_DIR: join(dir, 'media'),
-        JWT_SECRET: 'shutdown-test-secret-shutdown-test-secret',
-        RINGDOWN_API_ONLY: '1',
         SMTP_URL: `smtp://127.0.0.1:${smtp.port}`,
         // Far beyond the grace: only the shutdown can end the conversation.
         MAIL_CONNECT_TIMEOUT_MS: '60000',
@@ -62,12 +57,11 @@ describe('SIGTERM', () => {
         MAIL_POLL_MS: '200',
         SHUTDOWN_GRACE_MS: String(GRACE_MS),
       },
-      stdio: ['ignore', 'ignore', 'inherit'],
+      // The mail part is not ready with SMTP hanging; the server is alive all the same.
+      waitFor: 'alive',
     })
-    const exited = new Promise<number | null>((r) => child.once('exit', (code) => r(code)))
-    const base = `http://127.0.0.1:${PORT}`
+    const { base, child } = server
     try {
-      await waitForHealth(base)
       // A reset mail is queued, and its SMTP conversation starts and hangs.
       const queued = await fetch(`${base}/api/auth/forgot`, {
         method: 'POST',
@@ -91,7 +85,7 @@ describe('SIGTERM', () => {
       )
       inFlight.finish()
       const status = await inFlight.answered
-      const code = await exited
+      const code = await server.exited
       const took = performance.now() - signalled
 
       expect(late).toBe('refused')
