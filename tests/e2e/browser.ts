@@ -62,6 +62,8 @@ export async function startProduct() {
     async stop() {
       await new Promise((r) => server.close(r))
       await app.locals.ctx.outbox.settle()
+      // The worker threads start (and warm up) with the app; they would outlive the test.
+      await app.locals.ctx.pool.close()
       await fake.close()
       await knex.destroy()
       rmSync(dir, { recursive: true, force: true })
