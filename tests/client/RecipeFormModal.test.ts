@@ -45,6 +45,28 @@ const button = (text: string) =>
   [...document.querySelectorAll('button')].find((b) => b.textContent?.trim() === text)
 
 describe('the recipe form', () => {
+  // WCAG 2.2 §1.3.1 and §4.1.2 (from memory): a field's visible label is its accessible name,
+  // here through <label for> naming the input's id.
+  it('labels every typed field for assistive technology', async () => {
+    await open('edit')
+    for (const name of [
+      'Name',
+      'Version',
+      'Gauge',
+      'Target tension',
+      'Vibrating length',
+      'Notes',
+    ]) {
+      const label = [...document.querySelectorAll('label')].find(
+        (l) => l.textContent?.trim() === name,
+      )
+      expect(label, name).toBeDefined()
+      const target = document.getElementById(label!.htmlFor)
+      expect(target?.matches('input, textarea'), name).toBe(true)
+      expect(target, name).toBe(field(name))
+    }
+  })
+
   it('sends a new version only the fields that change, as the versions route takes them', async () => {
     const { sent } = fakeServer(
       on('POST', '/recipes/1/versions', () => ({
