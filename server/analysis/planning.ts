@@ -1,7 +1,7 @@
 import normalQuantile from '@stdlib/stats-base-dists-normal-quantile'
-import tCdf from '@stdlib/stats-base-dists-t-cdf'
 import tQuantile from '@stdlib/stats-base-dists-t-quantile'
 import { binomialLower, binomialUpper } from './binomial.ts'
+import { noncentralTCdf } from './noncentralT.ts'
 import { TRIANGLE_GUESS_RATE, triangleMinimumCorrect } from './triangle.ts'
 import type { Reason } from './types.ts'
 
@@ -28,8 +28,9 @@ export interface PairedTPlanInput {
 }
 
 /**
- * Players for a two-sided paired t-test: the smallest n with
- * n ≥ ((t_{1−α/2, n−1} + t_{power, n−1}) · s / d)², the textbook iteration.
+ * Players for a two-sided paired t-test: the smallest whole n whose power (pairedTPower)
+ * reaches the target. R's power.t.test solves for a fractional n and one takes its ceiling;
+ * the power grows with n, so that is the same n.
  */
 export function pairedTSampleSize(input: PairedTPlanInput): SampleSizePlan {
   const { difference, sd, alpha = 0.05, power = 0.8 } = input
@@ -37,19 +38,27 @@ export function pairedTSampleSize(input: PairedTPlanInput): SampleSizePlan {
   if (!(effect > 0) || !Number.isFinite(effect) || !validLevels(alpha, power)) {
     return { n: null, power: null, reason: sd === 0 ? 'no variance' : 'not enough data' }
   }
-  const required = (n: number) =>
-    ((tQuantile(1 - alpha / 2, n - 1) + tQuantile(power, n - 1)) / effect) ** 2
-  // The normal-theory answer is a lower bound, so the search starts there and runs briefly.
-  let n = Math.max(2, Math.ceil(((z(1 - alpha / 2) + z(power)) / effect) ** 2))
-  while (n < MAX_N && required(n) > n) n++
+  // The normal-theory answer is a lower bound, so the search starts just below it.
+  let n = Math.max(2, Math.floor(((z(1 - alpha / 2) + z(power)) / effect) ** 2))
+  while (n < MAX_N && pairedTPower(n, effect, alpha) < power) n++
   if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
   return { n, power: pairedTPower(n, effect, alpha), reason: null }
 }
 
-/** Approximate power of the two-sided paired t: the shifted central t (misses the far tail). */
+/**
+ * Power of the two-sided paired t with n players and effect d/s, as R's
+ * power.t.test(type = "paired", strict = FALSE) computes it: the chance that the noncentral t
+ * (df n − 1, noncentrality √n·d/s) lies above the critical value (the far tail, below −t, is
+ * left out, as R does by default).
+ */
 export function pairedTPower(n: number, standardizedEffect: number, alpha = 0.05): number {
   const df = n - 1
-  return tCdf(standardizedEffect * Math.sqrt(n) - tQuantile(1 - alpha / 2, df), df)
+  return noncentralTCdf(
+    tQuantile(1 - alpha / 2, df),
+    df,
+    Math.abs(standardizedEffect) * Math.sqrt(n),
+    false,
+  )
 }
 
 export interface SignTestPlanInput {
