@@ -27,6 +27,20 @@ export interface WilcoxonOptions {
   exact?: boolean
   /** Continuity correction for the normal approximation (default true, as R). */
   correct?: boolean
+  /**
+   * Significant digits the magnitudes are ranked at (default 7, as R's digits.rank = 7):
+   * differences of means that are equal but were summed in another order differ in the last
+   * bits, and must still tie. Infinity ranks them exactly as computed.
+   */
+  digitsRank?: number
+}
+
+/** `v` (> 0) rounded to `digits` significant digits, as R's signif does for ranking. */
+function significant(v: number, digits: number): number {
+  if (!Number.isFinite(digits)) return v
+  const scale = 10 ** (digits - 1 - Math.floor(Math.log10(v)))
+  // Dividing by a whole power of ten, never multiplying by its inexact inverse.
+  return scale >= 1 ? Math.round(v * scale) / scale : Math.round(v / (1 / scale)) * (1 / scale)
 }
 
 // Cumulative counts of the signed-rank statistic for each n, built once by the classic
@@ -90,7 +104,7 @@ export function wilcoxonSignedRank(
   y?: ArrayLike<number>,
   options: WilcoxonOptions = {},
 ): WilcoxonResult {
-  const { alternative = 'two-sided', correct = true } = options
+  const { alternative = 'two-sided', correct = true, digitsRank = 7 } = options
   const length = y ? Math.min(x.length, y.length) : x.length
   // Positive and negative magnitudes are sorted apart with the native numeric sort and then
   // merged, which ranks |d| without a comparator callback: this runs for every recipe pair.
@@ -101,8 +115,9 @@ export function wilcoxonSignedRank(
   let zeros = 0
   for (let i = 0; i < length; i++) {
     const d = y ? x[i] - y[i] : x[i]
-    if (d > 0) positive[np++] = d
-    else if (d < 0) negative[nn++] = -d
+    // Zeros are found before rounding, as R does; only the ranks use the rounded magnitudes.
+    if (d > 0) positive[np++] = significant(d, digitsRank)
+    else if (d < 0) negative[nn++] = significant(-d, digitsRank)
     else if (d === 0) zeros++
     // Anything else is a missing value: it is not a pair at all.
   }

@@ -6,6 +6,7 @@ import {
   wilcoxonSignedRank,
 } from '../../../server/analysis/index.ts'
 import { seeded } from './random.ts'
+import ties from './fixtures/wilcoxonTies.json'
 
 // Hollander & Wolfe (1973): paired depression-scale scores of nine patients at two visits, as
 // quoted in R's wilcox.test.Rd (see /work/shared/REFERENCES.md).
@@ -124,5 +125,27 @@ describe('wilcoxonSignedRank on bad input', () => {
     const tied = wilcoxonSignedRank([2, 2, 2, -2, 2, 2])
     expect(tied.method).toBe('normal')
     expect(Number.isFinite(tied.p)).toBe(true)
+  })
+})
+
+describe('ties at the ratings’ own precision', () => {
+  // Whole-point ratings of 12 players over three clips per recipe, averaged per player as the
+  // findings do. R 4.2.2: wilcox.test(ma, mb, paired = TRUE, digits.rank = 7) gives V = 64,
+  // p = 0.0544; with digits.rank = Inf the last bits of the means break true ties: V = 64.5,
+  // p = 0.0498 (fixtures/wilcoxonTies.R).
+  const means = (m: number[][]) => m.map((r) => (r[0] + r[1] + r[2]) / 3)
+  const a = means(ties.a)
+  const b = means(ties.b)
+
+  it('ranks at 7 significant digits by default, as R’s digits.rank = 7', () => {
+    const r = wilcoxonSignedRank(a, b)
+    expect(r.V).toBe(ties.digitsRank7.V)
+    expect(Math.abs((r.p as number) / ties.digitsRank7.p - 1)).toBeLessThan(1e-12)
+  })
+
+  it('ranks the values as computed when asked to, as R’s digits.rank = Inf', () => {
+    const r = wilcoxonSignedRank(a, b, { digitsRank: Infinity })
+    expect(r.V).toBe(ties.digitsRankInf.V)
+    expect(Math.abs((r.p as number) / ties.digitsRankInf.p - 1)).toBeLessThan(1e-12)
   })
 })
