@@ -1,4 +1,4 @@
-import chisquareCdf from '@stdlib/stats-base-dists-chisquare-cdf'
+import gammainc from '@stdlib/math-base-special-gammainc'
 import { rankAverage } from './rank.ts'
 import type { Reason } from './types.ts'
 
@@ -48,7 +48,9 @@ export function friedman(rows: ReadonlyArray<ArrayLike<number>>): FriedmanResult
     k,
     chiSquare,
     df,
-    p: 1 - chisquareCdf(chiSquare, df),
+    // The χ² upper tail as the regularized upper incomplete gamma Q(df/2, x/2), computed as
+    // such: 1 − cdf would be 0 or rounded for a strong effect (R: pchisq(lower.tail = FALSE)).
+    p: gammainc(chiSquare / 2, df / 2, true, true),
     kendallW: chiSquare / (n * df),
     rankSums,
     reason: null,

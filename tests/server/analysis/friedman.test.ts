@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { friedman } from '../../../server/analysis/index.ts'
 import { roundingTimes } from './roundingTimes.ts'
+import tails from './fixtures/friedmanTails.json'
 
 describe('friedman', () => {
   it('reproduces R friedman.test(RoundingTimes), with its ties', () => {
@@ -45,5 +46,17 @@ describe('friedman', () => {
         [70, 70, 70],
       ]),
     ).toMatchObject({ chiSquare: null, p: null, kendallW: null, reason: 'no variance' })
+  })
+})
+
+describe('friedman far in the tail', () => {
+  // R 4.2.2 friedman.test on fixtures/friedmanTails.R's matrices: 40 players who all rank three
+  // recipes one way (χ² = 80, p = 4.25e-18, where 1 − cdf gives 0), and 25 of whom one swaps two.
+  it('keeps the p as R computes it, not 1 − a number next to 1', () => {
+    for (const c of tails.cases) {
+      const r = friedman(c.rows)
+      expect(r.chiSquare).toBeCloseTo(c.chiSquare, 10)
+      expect(Math.abs((r.p as number) / c.p - 1)).toBeLessThan(1e-10)
+    }
   })
 })
