@@ -134,7 +134,8 @@ export function wilcoxonSignedRank(
   const useExact = (options.exact ?? n < WILCOXON_EXACT_LIMIT) && tieTerm === 0 && zeros === 0
   let p: number
   if (useExact && n <= EXACT_HARD_LIMIT) {
-    const upper = () => 1 - signedRankCdf(V - 1, n)
+    // P(V ≥ v) = P(V ≤ total − v) by symmetry: a lower tail, never 1 − cdf, keeps tiny p.
+    const upper = () => signedRankCdf(total - V, n)
     const lower = () => signedRankCdf(V, n)
     if (alternative === 'greater') p = upper()
     else if (alternative === 'less') p = lower()
