@@ -62,9 +62,10 @@ export function binomialTest(
   options: BinomialTestOptions = {},
 ): BinomialTestResult {
   const { p0 = 0.5, alternative = 'two-sided', level = 0.95 } = options
-  if (!(n > 0) || successes < 0 || successes > n || !Number.isInteger(successes)) {
-    return { successes, n, estimate: null, p: null, ci: null, reason: 'not enough data' }
-  }
+  checkCounts('binomialTest', successes, n)
+  if (!(p0 > 0 && p0 < 1))
+    throw new RangeError('binomialTest: p0 must lie strictly between 0 and 1')
+  if (n === 0) return { successes, n, estimate: null, p: null, ci: null, reason: 'no answers' }
   const x = successes
   const estimate = x / n
   let p: number
@@ -80,6 +81,14 @@ export function binomialTest(
     ci = clopperPearson(x, n, level) as Interval
   }
   return { successes, n, estimate, p, ci, reason: null }
+}
+
+/** Counts are whole numbers with 0 ≤ successes ≤ n: anything else is a caller's mistake. */
+export function checkCounts(caller: string, successes: number, n: number): void {
+  if (!Number.isInteger(n) || n < 0) throw new RangeError(`${caller}: n must be a whole number ≥ 0`)
+  if (!Number.isInteger(successes) || successes < 0 || successes > n) {
+    throw new RangeError(`${caller}: successes must be a whole number from 0 to n`)
+  }
 }
 
 function twoSidedP(x: number, n: number, p0: number): number {
@@ -112,5 +121,7 @@ export function signTest(
   level = 0.95,
 ): SignTestResult {
   const n = firstPreferred + secondPreferred
-  return { ...binomialTest(firstPreferred, n, { p0: 0.5, level }), ties }
+  const result = binomialTest(firstPreferred, n, { p0: 0.5, level })
+  if (n === 0 && ties > 0) return { ...result, reason: 'every answer was no preference', ties }
+  return { ...result, ties }
 }

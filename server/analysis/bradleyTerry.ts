@@ -2,10 +2,10 @@ import type { Id, Reason } from './types.ts'
 
 export interface BradleyTerryAbility {
   item: Id
-  /** log ability relative to the reference item (0 for the reference). */
-  logAbility: number
+  /** log ability relative to the reference item (0 for the reference); null when no fit. */
+  logAbility: number | null
   /** Standard error of logAbility with the reference fixed; 0 for the reference. */
-  se: number
+  se: number | null
   wins: number
   comparisons: number
 }
@@ -14,8 +14,8 @@ export interface BradleyTerryResult {
   items: Id[]
   reference: Id | null
   abilities: BradleyTerryAbility[]
-  /** winProbability[i][j]: modelled chance that item i is preferred over item j. */
-  winProbability: number[][]
+  /** winProbability[i][j]: modelled chance that item i is preferred over item j; null when no fit. */
+  winProbability: number[][] | null
   iterations: number
   converged: boolean
   reason: Reason
@@ -43,6 +43,20 @@ export function winsMatrix(choices: readonly PairChoice[], items: readonly Id[])
     if (i !== undefined && j !== undefined && i !== j) wins[i][j]++
   }
   return wins
+}
+
+/** A square matrix of whole, non-negative counts, one row and column per item. */
+function checkWins(wins: readonly (readonly number[])[], k: number): void {
+  if (wins.length !== k || wins.some((row) => row.length !== k)) {
+    throw new RangeError('bradleyTerry: wins must be a square matrix with one row per item')
+  }
+  for (const row of wins) {
+    for (const w of row) {
+      if (!Number.isInteger(w) || w < 0) {
+        throw new RangeError('bradleyTerry: wins must be whole numbers ≥ 0')
+      }
+    }
+  }
 }
 
 /**
@@ -81,6 +95,10 @@ export function bradleyTerry(
 ): BradleyTerryResult {
   const { reference = 0, tolerance = 1e-10, maxIterations = 100_000 } = options
   const k = items.length
+  checkWins(wins, k)
+  if (k > 0 && !(Number.isInteger(reference) && reference >= 0 && reference < k)) {
+    throw new RangeError('bradleyTerry: reference must index one of the items')
+  }
   const totalWins = wins.map((row) => row.reduce((a, b) => a + b, 0))
   const comparisons = items.map((_, i) =>
     wins[i].reduce((sum, w, j) => sum + w + (wins[j]?.[i] ?? 0), 0),
@@ -88,20 +106,22 @@ export function bradleyTerry(
   const failed = (reason: Reason): BradleyTerryResult => ({
     items: [...items],
     reference: items[reference] ?? null,
+    // No placeholder numbers: a scale that could not be fitted says why and shows nothing.
     abilities: items.map((item, i) => ({
       item,
-      logAbility: 0,
-      se: 0,
+      logAbility: null,
+      se: null,
       wins: totalWins[i],
       comparisons: comparisons[i],
     })),
-    winProbability: items.map(() => items.map(() => 0.5)),
+    winProbability: null,
     iterations: 0,
     converged: false,
     reason,
   })
-  if (k < 2 || comparisons.some((c) => c === 0)) return failed('not enough data')
-  if (!stronglyConnected(wins)) return failed('no finite estimate')
+  if (k < 2) return failed('fewer than two recipes')
+  if (comparisons.some((c) => c === 0)) return failed('a recipe was never compared')
+  if (!stronglyConnected(wins)) return failed('some recipes won every comparison with the rest')
 
   let gamma = new Float64Array(k).fill(1)
   let iterations = 0
@@ -128,6 +148,7 @@ export function bradleyTerry(
     gamma = next
     converged = change < tolerance
   }
+  if (!converged) return { ...failed('did not converge'), iterations }
 
   const lambda = Array.from(gamma, Math.log)
   const winProbability = lambda.map((li) => lambda.map((lj) => 1 / (1 + Math.exp(lj - li))))

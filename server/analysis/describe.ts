@@ -30,9 +30,9 @@ export function varianceOf(values: ArrayLike<number>, mean = meanOf(values)): nu
 /** Mean with a t-interval; a constant sample gets a zero-width interval, which is honest. */
 export function summarizeMean(values: ArrayLike<number>, level = 0.95): MeanSummary {
   const n = values.length
-  if (n === 0) return { n, mean: null, sd: null, ci: null, reason: 'not enough data' }
+  if (n === 0) return { n, mean: null, sd: null, ci: null, reason: 'nobody rated it' }
   const mean = meanOf(values)
-  if (n === 1) return { n, mean, sd: null, ci: null, reason: 'not enough data' }
+  if (n === 1) return { n, mean, sd: null, ci: null, reason: 'only one player rated it' }
   const sd = Math.sqrt(varianceOf(values, mean))
   const half = tQuantile(1 - (1 - level) / 2, n - 1) * (sd / Math.sqrt(n))
   return { n, mean, sd, ci: { lower: mean - half, upper: mean + half }, reason: null }

@@ -89,7 +89,7 @@ export function computeFindings(input: FindingsInput): Findings {
     ignored: data.ignored,
     excludedPlayers: excluded.size,
     attributes,
-    reason: data.players.length === 0 ? 'not enough data' : null,
+    reason: data.players.length === 0 ? 'no answers' : null,
   }
 }
 

@@ -26,8 +26,15 @@ export function friedman(rows: ReadonlyArray<ArrayLike<number>>): FriedmanResult
   const k = n > 0 ? rows[0].length : 0
   const rankSums = new Array<number>(k).fill(0)
   const empty = { n, k, chiSquare: null, df: null, p: null, kendallW: null, rankSums }
+  for (const row of rows) {
+    if (row.length !== k) throw new RangeError('friedman: every row needs one value per recipe')
+    for (let j = 0; j < k; j++) {
+      if (!Number.isFinite(row[j]))
+        throw new RangeError('friedman: rows must be complete and finite')
+    }
+  }
   if (k < 3) return { ...empty, reason: 'fewer than three recipes' }
-  if (n < 2) return { ...empty, reason: 'not enough data' }
+  if (n < 2) return { ...empty, reason: 'fewer than two players rated every recipe' }
 
   let tieTerm = 0
   for (const row of rows) {

@@ -33,7 +33,14 @@ export function omnibus(
     if (columns.every((c) => !Number.isNaN(row[c]))) rows.push(columns.map((c) => row[c]))
   }
   const result = columns.length >= 3 ? friedman(rows) : friedman([])
-  const reason = columns.length < 3 ? 'fewer than three recipes' : result.reason
+  const reason: Reason =
+    recipes.length < 3
+      ? 'fewer than three recipes'
+      : active.length === 0
+        ? 'nobody rated this attribute'
+        : columns.length < 3
+          ? 'fewer than three recipes rated'
+          : result.reason
   const dropped = active.length - rows.length
   const f = { ...result, reason }
   return {
@@ -46,7 +53,7 @@ export function omnibus(
     p: f.p,
     kendallW: f.kendallW,
     rankSums: f.rankSums,
-    sentence: omnibusSentence(attribute, f, dropped),
+    sentence: omnibusSentence(attribute, f, dropped, columns.length),
     reason,
   }
 }

@@ -1,6 +1,7 @@
 import tCdf from '@stdlib/stats-base-dists-t-cdf'
 import tQuantile from '@stdlib/stats-base-dists-t-quantile'
 import { isEffectivelyZero, meanOf, varianceOf } from './describe.ts'
+import { requireFinite, requireSameLength } from './inputs.ts'
 import type { Alternative, Interval, Reason } from './types.ts'
 
 export interface PairedTResult {
@@ -29,9 +30,11 @@ export function pairedTTest(
   y: ArrayLike<number>,
   options: PairedTOptions = {},
 ): PairedTResult {
-  const n = Math.min(x.length, y.length)
+  requireSameLength('pairedTTest', x, y)
+  const n = x.length
   const d = new Float64Array(n)
   for (let i = 0; i < n; i++) d[i] = x[i] - y[i]
+  requireFinite('pairedTTest', d, 'x and y')
   return oneSampleT(d, options)
 }
 
@@ -41,7 +44,8 @@ export function oneSampleT(
   options: PairedTOptions = {},
 ): PairedTResult {
   const { alternative = 'two-sided', level = 0.95 } = options
-  const d = finiteOnly(differences)
+  requireFinite('oneSampleT', differences, 'differences')
+  const d = differences
   const n = d.length
   const empty = {
     n,
@@ -54,7 +58,8 @@ export function oneSampleT(
     dz: null,
   }
   if (n < 2) {
-    return { ...empty, meanDifference: n === 1 ? d[0] : null, reason: 'not enough data' }
+    if (n === 0) return { ...empty, reason: 'no player rated both' }
+    return { ...empty, meanDifference: d[0], reason: 'only one player rated both' }
   }
   const mean = meanOf(d)
   const sd = Math.sqrt(varianceOf(d, mean))
@@ -80,12 +85,4 @@ export function oneSampleT(
     ci = { lower: mean - half, upper: mean + half }
   }
   return { n, meanDifference: mean, sdDifference: sd, ci, t, df, p, dz: mean / sd, reason: null }
-}
-
-/** A missing value leaves the pair out rather than turning every figure into NaN. */
-function finiteOnly(values: ArrayLike<number>): ArrayLike<number> {
-  for (let i = 0; i < values.length; i++) {
-    if (!Number.isFinite(values[i])) return Array.from(values).filter(Number.isFinite)
-  }
-  return values
 }

@@ -36,12 +36,12 @@ export function pairedTSampleSize(input: PairedTPlanInput): SampleSizePlan {
   const { difference, sd, alpha = 0.05, power = 0.8 } = input
   const effect = Math.abs(difference) / sd
   if (!(effect > 0) || !Number.isFinite(effect) || !validLevels(alpha, power)) {
-    return { n: null, power: null, reason: sd === 0 ? 'no variance' : 'not enough data' }
+    return { n: null, power: null, reason: planFailure(difference === 0, sd === 0) }
   }
   // The normal-theory answer is a lower bound, so the search starts just below it.
   let n = Math.max(2, Math.floor(((z(1 - alpha / 2) + z(power)) / effect) ** 2))
   while (n < MAX_N && pairedTPower(n, effect, alpha) < power) n++
-  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  if (n >= MAX_N) return { n: null, power: null, reason: 'more than 100,000 players needed' }
   return { n, power: pairedTPower(n, effect, alpha), reason: null }
 }
 
@@ -91,13 +91,13 @@ export function signTestPower(n: number, share: number, alpha = 0.05): number {
 export function signTestSampleSize(input: SignTestPlanInput): SampleSizePlan {
   const { share, alpha = 0.05, power = 0.8 } = input
   if (!(share > 0 && share < 1) || share === 0.5 || !validLevels(alpha, power)) {
-    return { n: null, power: null, reason: share === 0.5 ? 'no variance' : 'not enough data' }
+    return { n: null, power: null, reason: planFailure(share === 0.5, false) }
   }
   const approx =
     ((z(1 - alpha / 2) * 0.5 + z(power) * Math.sqrt(share * (1 - share))) / (share - 0.5)) ** 2
   let n = Math.max(1, Math.floor(approx * 0.7))
   while (n < MAX_N && signTestPower(n, share, alpha) < power) n++
-  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  if (n >= MAX_N) return { n: null, power: null, reason: 'more than 100,000 players needed' }
   return { n, power: signTestPower(n, share, alpha), reason: null }
 }
 
@@ -118,7 +118,7 @@ export function trianglePower(n: number, pd: number, alpha = 0.05): number {
 export function triangleSampleSize(input: TrianglePlanInput): SampleSizePlan {
   const { pd, alpha = 0.05, power = 0.8 } = input
   if (!(pd > 0 && pd <= 1) || !validLevels(alpha, power)) {
-    return { n: null, power: null, reason: 'not enough data' }
+    return { n: null, power: null, reason: planFailure(pd === 0, false) }
   }
   const p1 = TRIANGLE_GUESS_RATE + (2 / 3) * pd
   const p0 = TRIANGLE_GUESS_RATE
@@ -127,8 +127,15 @@ export function triangleSampleSize(input: TrianglePlanInput): SampleSizePlan {
     2
   let n = Math.max(1, Math.floor(approx * 0.7))
   while (n < MAX_N && trianglePower(n, pd, alpha) < power) n++
-  if (n >= MAX_N) return { n: null, power: null, reason: 'not enough data' }
+  if (n >= MAX_N) return { n: null, power: null, reason: 'more than 100,000 players needed' }
   return { n, power: trianglePower(n, pd, alpha), reason: null }
+}
+
+/** Inputs the planner form cannot send; a library caller that sends them made a mistake. */
+function planFailure(nothingToDetect: boolean, noSpread: boolean): Reason {
+  if (nothingToDetect) return 'no difference to detect'
+  if (noSpread) return 'no variance'
+  throw new RangeError('planning: the effect must be finite and α and power between 0 and 1')
 }
 
 function validLevels(alpha: number, power: number): boolean {

@@ -137,7 +137,7 @@ export function reliability(
       panelAgreement: agreement.rho,
       panelCells: agreement.cells,
       flagged: enough && (missShare as number) > maxMissShare,
-      reason: enough ? null : 'not enough data',
+      reason: enough ? null : 'too few hidden duplicates',
     })
   }
   return { rule: reliabilityRule(tolerance, maxMissShare, minPairs), players }

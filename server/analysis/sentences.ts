@@ -30,8 +30,11 @@ export function pairSentence(
       `${comparative(words)} than ${d > 0 ? first : second}; with no spread there is no test.`
     )
   }
+  if (t.reason === 'no player rated both') {
+    return `No player has rated both ${first} and ${second} on ${attribute} yet.`
+  }
   if (d === null || t.ci === null || holmP === null) {
-    return `Not enough data to compare ${first} and ${second} on ${attribute} (${t.n} ${players(t.n)} rated both).`
+    return `No comparison of ${first} and ${second} on ${attribute} yet: ${t.n} ${players(t.n)} rated both, and a test needs two.`
   }
   const secondHigher = d >= 0
   const high = secondHigher ? second : first
@@ -50,16 +53,28 @@ function players(n: number): string {
   return n === 1 ? 'player' : 'players'
 }
 
-export function omnibusSentence(attribute: string, f: FriedmanResult, dropped: number): string {
+export function omnibusSentence(
+  attribute: string,
+  f: FriedmanResult,
+  dropped: number,
+  ratedRecipes = f.k,
+): string {
   const tail = dropped > 0 ? `; ${dropped} ${players(dropped)} without every recipe left out` : ''
   if (f.reason === 'fewer than three recipes') {
     return `With fewer than three recipes the pair comparison is the whole test for ${attribute}.`
+  }
+  if (f.reason === 'nobody rated this attribute') {
+    return `Nobody has rated ${attribute} yet: there is nothing to test.`
+  }
+  if (f.reason === 'fewer than three recipes rated') {
+    const rated = ratedRecipes === 1 ? 'only one recipe has' : `only ${ratedRecipes} recipes have`
+    return `No overall test on ${attribute}: ${rated} been rated on it so far.`
   }
   if (f.reason === 'no variance') {
     return `Every player gave all recipes the same ${attribute} rating: nothing to rank${tail}.`
   }
   if (f.chiSquare === null || f.p === null || f.kendallW === null) {
-    return `Not enough data for an overall test on ${attribute} (${f.n} ${players(f.n)} rated every recipe${tail}).`
+    return `No overall test on ${attribute}: it needs two players who rated every recipe, and ${f.n} did${tail}.`
   }
   return (
     `Friedman test on ${attribute}: χ²(${f.df}) = ${formatNumber(f.chiSquare, 2)}, p ${formatP(f.p)}, ` +

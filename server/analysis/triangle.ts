@@ -1,4 +1,4 @@
-import { binomialUpper, clopperPearson } from './binomial.ts'
+import { binomialUpper, checkCounts, clopperPearson } from './binomial.ts'
 import type { Interval, Reason } from './types.ts'
 
 /** Chance of picking the odd one out of three by guessing. */
@@ -34,7 +34,8 @@ export function proportionDiscriminators(shareCorrect: number): number {
 }
 
 export function triangleTest(correct: number, n: number, level = 0.95): TriangleResult {
-  if (!(n > 0) || correct < 0 || correct > n || !Number.isInteger(correct)) {
+  checkCounts('triangleTest', correct, n)
+  if (n === 0) {
     return {
       correct,
       n,
@@ -43,7 +44,7 @@ export function triangleTest(correct: number, n: number, level = 0.95): Triangle
       minimumCorrect01: null,
       pd: null,
       pdCi: null,
-      reason: 'not enough data',
+      reason: 'no answers',
     }
   }
   const ci = clopperPearson(correct, n, level) as Interval

@@ -6,9 +6,40 @@
 /** Identifiers come from the database (numbers) or from files (strings). */
 export type Id = string | number
 
-/** Why a result could not be computed; null when it could. */
+/**
+ * Why a result could not be computed, in words a reader can act on; null when it could. Each
+ * path that gives up names its own cause: tables and exports show the phrase as it is.
+ */
 export type Reason =
-  'not enough data' | 'no variance' | 'no finite estimate' | 'fewer than three recipes' | null
+  // A recipe's mean on one attribute.
+  | 'nobody rated it'
+  | 'only one player rated it'
+  // A pair of recipes (or of time points).
+  | 'no player rated both'
+  | 'only one player rated both'
+  // The test across recipes.
+  | 'nobody rated this attribute'
+  | 'fewer than three recipes'
+  | 'fewer than three recipes rated'
+  | 'fewer than two players rated every recipe'
+  // Counts of answers.
+  | 'no answers'
+  | 'every answer was no preference'
+  // The preference scale.
+  | 'fewer than two recipes'
+  | 'a recipe was never compared'
+  | 'some recipes won every comparison with the rest'
+  | 'did not converge'
+  // Planning.
+  | 'no difference to detect'
+  | 'more than 100,000 players needed'
+  // Reliability.
+  | 'too few hidden duplicates'
+  // Anywhere.
+  | 'not enough data'
+  | 'no variance'
+  | 'no finite estimate'
+  | null
 
 export type Alternative = 'two-sided' | 'less' | 'greater'
 

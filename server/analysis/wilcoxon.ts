@@ -1,4 +1,5 @@
 import normalCdf from '@stdlib/stats-base-dists-normal-cdf'
+import { requireFinite, requireSameLength } from './inputs.ts'
 import type { Alternative, Reason } from './types.ts'
 
 /** R switches to the normal approximation at 50 non-zero differences; so do we. */
@@ -105,7 +106,12 @@ export function wilcoxonSignedRank(
   options: WilcoxonOptions = {},
 ): WilcoxonResult {
   const { alternative = 'two-sided', correct = true, digitsRank = 7 } = options
-  const length = y ? Math.min(x.length, y.length) : x.length
+  requireFinite('wilcoxonSignedRank', x, 'x')
+  if (y) {
+    requireSameLength('wilcoxonSignedRank', x, y)
+    requireFinite('wilcoxonSignedRank', y, 'y')
+  }
+  const length = x.length
   // Positive and negative magnitudes are sorted apart with the native numeric sort and then
   // merged, which ranks |d| without a comparator callback: this runs for every recipe pair.
   const positive = new Float64Array(length)
@@ -118,12 +124,11 @@ export function wilcoxonSignedRank(
     // Zeros are found before rounding, as R does; only the ranks use the rounded magnitudes.
     if (d > 0) positive[np++] = significant(d, digitsRank)
     else if (d < 0) negative[nn++] = significant(-d, digitsRank)
-    else if (d === 0) zeros++
-    // Anything else is a missing value: it is not a pair at all.
+    else zeros++
   }
   const n = np + nn
   const empty = { n, zeros, V: null, p: null, method: null, rankBiserial: null }
-  if (n === 0) return { ...empty, reason: zeros > 0 ? 'no variance' : 'not enough data' }
+  if (n === 0) return { ...empty, reason: zeros > 0 ? 'no variance' : 'no player rated both' }
   const { V, tieTerm } = positiveRankSum(
     positive.subarray(0, np).sort(),
     negative.subarray(0, nn).sort(),

@@ -328,9 +328,10 @@ describe('findings with too little data', () => {
 
     expect(f.reason).toBe('not enough data: no answers yet')
     expect(f.summary).toMatchObject({ invited: 3, done: 0, answers: 0, completion: 0 })
-    expect(f.attributes.every((a) => a.pairs.every((p) => p.reason === 'not enough data'))).toBe(
-      true,
-    )
+    expect(
+      f.attributes.every((a) => a.pairs.every((p) => p.reason === 'no player rated both')),
+    ).toBe(true)
+    expect(f.attributes.every((a) => a.omnibus.reason === 'nobody rated this attribute')).toBe(true)
     expectNoNaN(f)
   })
 
@@ -345,9 +346,14 @@ describe('findings with too little data', () => {
     const brightness = f.attributes.find((a) => a.attribute === 'brightness')!
 
     expect(f.reason).toBe('not enough data: only one player has answered')
-    expect(brightness.recipes[2]).toMatchObject({ n: 0, mean: null, reason: 'not enough data' })
-    expect(brightness.pairs.every((p) => p.p === null && p.reason === 'not enough data')).toBe(true)
-    expect(brightness.omnibus.reason).toBe('fewer than three recipes')
+    expect(brightness.recipes[2]).toMatchObject({ n: 0, mean: null, reason: 'nobody rated it' })
+    expect(brightness.pairs.map((p) => [p.p, p.reason])).toEqual([
+      [null, 'only one player rated both'],
+      [null, 'no player rated both'],
+      [null, 'no player rated both'],
+    ])
+    // A three-recipe session with one recipe unrated: the cause is the missing ratings.
+    expect(brightness.omnibus.reason).toBe('fewer than three recipes rated')
     expectNoNaN(f)
   })
 
@@ -417,7 +423,7 @@ describe('findings of pair and triangle sessions', () => {
     expect(pref.answers).toBeGreaterThan(0)
     // Clip ids follow recipe order in the fixture, so the first recipe always wins.
     expect(pref.pairs.every((p) => p.secondPreferred === 0 && p.firstPreferred > 0)).toBe(true)
-    expect(pref.scale.reason).toBe('no finite estimate')
+    expect(pref.scale.reason).toBe('some recipes won every comparison with the rest')
     expect(brightness.pairs.every((p) => p.secondMore === 0)).toBe(true)
     expect(brightness.pairs[0].sentence).toMatch(/judged brighter than/)
     expect(pref.attributes.find((a) => a.attribute === 'bow_response')!.pairs).toEqual([])

@@ -28,8 +28,9 @@ export interface PreferencePair {
 export interface ScaleAbility {
   item: number
   name: string
-  logAbility: number
-  se: number
+  /** Null when the scale could not be fitted (the scale's reason says why). */
+  logAbility: number | null
+  se: number | null
   wins: number
   comparisons: number
 }
@@ -39,7 +40,7 @@ export interface PreferenceScale {
   items: number[]
   reference: number | null
   abilities: ScaleAbility[]
-  winProbability: number[][]
+  winProbability: number[][] | null
   converged: boolean
   reason: FindingsReason
 }

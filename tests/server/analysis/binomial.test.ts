@@ -46,9 +46,18 @@ describe('binomialTest', () => {
     expect(binomialTest(2, 10, { alternative: 'less' }).p).toBeCloseTo(56 / 1024, 12)
   })
 
-  it('returns "not enough data" when nobody expressed a preference', () => {
-    expect(signTest(0, 0, 5)).toMatchObject({ n: 0, p: null, ci: null, reason: 'not enough data' })
-    expect(binomialTest(3, 2).reason).toBe('not enough data')
+  it('gives its own reason when nobody expressed a preference, and refuses impossible counts', () => {
+    expect(signTest(0, 0, 5)).toMatchObject({
+      n: 0,
+      p: null,
+      ci: null,
+      reason: 'every answer was no preference',
+    })
+    expect(signTest(0, 0)).toMatchObject({ n: 0, p: null, reason: 'no answers' })
+    expect(() => binomialTest(3, 2)).toThrow(/from 0 to n/)
+    expect(() => binomialTest(1.5, 2)).toThrow(/whole number/)
+    expect(() => binomialTest(1, NaN)).toThrow(/whole number/)
+    expect(() => binomialTest(1, 2, { p0: 1 })).toThrow(/p0/)
     expect(clopperPearson(0, 0)).toBeNull()
   })
 })

@@ -31,11 +31,12 @@ describe('bradleyTerry', () => {
 
   it('gives win probabilities that follow from the abilities', () => {
     const r = bradleyTerry(journals, citations)
+    const win = r.winProbability as number[][]
     // Computed from the model: P(JRSS-B over Biometrika) = 1 / (1 + e^(−0.2689541)).
-    expect(r.winProbability[3][0]).toBeCloseTo(1 / (1 + Math.exp(-0.2689541)), 6)
+    expect(win[3][0]).toBeCloseTo(1 / (1 + Math.exp(-0.2689541)), 6)
     for (let i = 0; i < 4; i++) {
       for (let j = 0; j < 4; j++) {
-        expect(r.winProbability[i][j] + r.winProbability[j][i]).toBeCloseTo(1, 12)
+        expect(win[i][j] + win[j][i]).toBeCloseTo(1, 12)
       }
     }
   })
@@ -43,9 +44,9 @@ describe('bradleyTerry', () => {
   it('does not depend on which item is the reference, up to a shift', () => {
     const a = bradleyTerry(journals, citations)
     const b = bradleyTerry(journals, citations, { reference: 2 })
-    const shift = a.abilities[2].logAbility
+    const shift = a.abilities[2].logAbility as number
     b.abilities.forEach((ability, i) =>
-      expect(ability.logAbility).toBeCloseTo(a.abilities[i].logAbility - shift, 6),
+      expect(ability.logAbility).toBeCloseTo((a.abilities[i].logAbility as number) - shift, 6),
     )
   })
 
@@ -76,7 +77,7 @@ describe('bradleyTerry', () => {
       ],
     )
     expect(r.abilities[1].logAbility).toBeCloseTo(0, 9)
-    expect(r.winProbability[0][1]).toBeCloseTo(0.5, 9)
+    expect(r.winProbability?.[0][1]).toBeCloseTo(0.5, 9)
     // Computed from the information n·p·(1 − p) = 10 · 0.25: s.e. = 1/√2.5.
     expect(r.abilities[1].se).toBeCloseTo(1 / Math.sqrt(2.5), 9)
   })
@@ -90,12 +91,20 @@ describe('bradleyTerry', () => {
         [0, 1, 0],
       ],
     )
-    expect(r.reason).toBe('no finite estimate')
-    expect(r.abilities.every((a) => Number.isFinite(a.logAbility))).toBe(true)
+    // Hunter (2004), Assumption 1: with A unbeaten the likelihood has no finite maximum.
+    expect(r.reason).toBe('some recipes won every comparison with the rest')
+    // No placeholder numbers: no abilities, no 0.5 win chances.
+    expect(r.abilities.map((a) => [a.logAbility, a.se])).toEqual([
+      [null, null],
+      [null, null],
+      [null, null],
+    ])
+    expect(r.winProbability).toBeNull()
+    expect(r.abilities.map((a) => a.wins)).toEqual([7, 2, 1])
   })
 
-  it('says "not enough data" with no comparisons or an item never compared', () => {
-    expect(bradleyTerry([], []).reason).toBe('not enough data')
+  it('gives its own reason with no items, or an item never compared', () => {
+    expect(bradleyTerry([], []).reason).toBe('fewer than two recipes')
     const r = bradleyTerry(
       ['A', 'B', 'C'],
       [
@@ -104,6 +113,62 @@ describe('bradleyTerry', () => {
         [0, 0, 0],
       ],
     )
-    expect(r.reason).toBe('not enough data')
+    expect(r.reason).toBe('a recipe was never compared')
+    expect(r.winProbability).toBeNull()
+  })
+
+  it('refuses wins that are not a square matrix of whole counts', () => {
+    expect(() => bradleyTerry(['A', 'B'], [[0, 1]])).toThrow(/square matrix/)
+    expect(() =>
+      bradleyTerry(
+        ['A', 'B'],
+        [
+          [0, 1.5],
+          [1, 0],
+        ],
+      ),
+    ).toThrow(/whole numbers/)
+    expect(() =>
+      bradleyTerry(
+        ['A', 'B'],
+        [
+          [0, NaN],
+          [1, 0],
+        ],
+      ),
+    ).toThrow(/whole numbers/)
+    expect(() =>
+      bradleyTerry(
+        ['A', 'B'],
+        [
+          [0, -1],
+          [1, 0],
+        ],
+      ),
+    ).toThrow(/whole numbers/)
+    expect(() =>
+      bradleyTerry(
+        ['A', 'B'],
+        [
+          [0, 1],
+          [1, 0],
+        ],
+        { reference: 2 },
+      ),
+    ).toThrow(/reference/)
+  })
+
+  it('says when the fit does not converge, with no numbers', () => {
+    const r = bradleyTerry(
+      ['A', 'B', 'C'],
+      [
+        [0, 40, 1],
+        [1, 0, 30],
+        [20, 1, 0],
+      ],
+      { maxIterations: 2 },
+    )
+    expect(r.reason).toBe('did not converge')
+    expect(r.abilities[1].logAbility).toBeNull()
   })
 })

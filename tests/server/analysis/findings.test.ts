@@ -133,20 +133,30 @@ describe('computeFindings with three recipes', () => {
 })
 
 describe('computeFindings on bad input', () => {
-  it('answers "not enough data" for no ratings', () => {
+  it('answers "no answers" for no ratings', () => {
     const f = computeFindings({ ratings: [] })
-    expect(f).toMatchObject({ players: 0, attributes: [], reason: 'not enough data' })
+    expect(f).toMatchObject({ players: 0, attributes: [], reason: 'no answers' })
   })
 
   it('handles a single player without NaN', () => {
     const f = computeFindings({ ratings: ratingsFrom([[40, 60, 50]]), recipes })
     const [a] = f.attributes
-    expect(a.pairs.every((p) => p.reason === 'not enough data' && p.p === null)).toBe(true)
-    expect(a.pairs[0].sentence).toBe(
-      'Not enough data to compare Recipe A and Recipe B on brightness (1 player rated both).',
+    expect(a.pairs.every((p) => p.reason === 'only one player rated both' && p.p === null)).toBe(
+      true,
     )
-    expect(a.omnibus.reason).toBe('not enough data')
-    expect(a.recipes[0]).toMatchObject({ n: 1, mean: 40, ci: null, reason: 'not enough data' })
+    expect(a.pairs[0].sentence).toBe(
+      'No comparison of Recipe A and Recipe B on brightness yet: 1 player rated both, and a test needs two.',
+    )
+    expect(a.omnibus.reason).toBe('fewer than two players rated every recipe')
+    expect(a.omnibus.sentence).toBe(
+      'No overall test on brightness: it needs two players who rated every recipe, and 1 did.',
+    )
+    expect(a.recipes[0]).toMatchObject({
+      n: 1,
+      mean: 40,
+      ci: null,
+      reason: 'only one player rated it',
+    })
     expectNoNaN(f)
   })
 
@@ -163,14 +173,51 @@ describe('computeFindings on bad input', () => {
     })
     const [a] = f.attributes
     const c = a.recipes.find((r) => r.recipe === 'C')
-    expect(c).toMatchObject({ n: 0, mean: null, reason: 'not enough data' })
+    expect(c).toMatchObject({ n: 0, mean: null, reason: 'nobody rated it' })
     const ab = a.pairs.find((p) => p.first === 'A' && p.second === 'B')
     expect(ab?.reason).toBeNull()
     const ac = a.pairs.find((p) => p.first === 'A' && p.second === 'C')
-    expect(ac).toMatchObject({ n: 0, dropped: 4, p: null, holmP: null, reason: 'not enough data' })
+    expect(ac).toMatchObject({
+      n: 0,
+      dropped: 4,
+      p: null,
+      holmP: null,
+      reason: 'no player rated both',
+    })
+    expect(ac?.sentence).toBe('No player has rated both Recipe A and Recipe C on brightness yet.')
     // Holm counts only the pair that could be tested.
     expect(ab?.holmP).toBe(ab?.p)
-    expect(a.omnibus.reason).toBe('fewer than three recipes')
+    // Four recipes in the session, two of them rated: the design is not the cause.
+    expect(a.omnibus.reason).toBe('fewer than three recipes rated')
+    expect(a.omnibus.sentence).toBe(
+      'No overall test on brightness: only 2 recipes have been rated on it so far.',
+    )
+    expectNoNaN(f)
+  })
+
+  it('says nobody rated an attribute, not that the session has too few recipes', () => {
+    const warmth = { id: 'warmth', name: 'warmth', higher: 'warmer' }
+    const f = computeFindings({
+      ratings: ratingsFrom([
+        [40, 60, 50],
+        [45, 62, 52],
+      ]),
+      recipes,
+      attributes: [brightness, warmth],
+    })
+    const w = f.attributes.find((a) => a.attribute === 'warmth')
+    expect(w?.players).toBe(0)
+    expect(w?.omnibus.reason).toBe('nobody rated this attribute')
+    expect(w?.omnibus.sentence).toBe('Nobody has rated warmth yet: there is nothing to test.')
+    expect(w?.recipes.every((r) => r.reason === 'nobody rated it')).toBe(true)
+    expect(w?.pairs.every((p) => p.reason === 'no player rated both')).toBe(true)
+    // Two recipes in the session: there the pair is the whole test, and says so.
+    const two = computeFindings({
+      ratings: ratingsFrom([[40, 60]]),
+      recipes: recipes.slice(0, 2),
+      attributes: [brightness, warmth],
+    })
+    expect(two.attributes[1].omnibus.reason).toBe('fewer than three recipes')
     expectNoNaN(f)
   })
 

@@ -33,7 +33,22 @@ describe('friedman', () => {
       p: null,
       reason: 'fewer than three recipes',
     })
-    expect(friedman([[1, 2, 3]])).toMatchObject({ p: null, reason: 'not enough data' })
+    expect(friedman([[1, 2, 3]])).toMatchObject({
+      p: null,
+      reason: 'fewer than two players rated every recipe',
+    })
+    expect(() =>
+      friedman([
+        [1, 2, 3],
+        [1, 2],
+      ]),
+    ).toThrow(/one value per recipe/)
+    expect(() =>
+      friedman([
+        [1, 2, 3],
+        [1, NaN, 3],
+      ]),
+    ).toThrow(/complete and finite/)
     expect(
       friedman([
         [1, 2],

@@ -44,10 +44,26 @@ describe('pairedTTest', () => {
     }
   })
 
-  it('says "not enough data" for no pairs or a single pair instead of NaN', () => {
-    expect(pairedTTest([], [])).toMatchObject({ n: 0, t: null, p: null, reason: 'not enough data' })
+  it('gives its own reason for no pairs or a single pair instead of NaN', () => {
+    expect(pairedTTest([], [])).toMatchObject({
+      n: 0,
+      t: null,
+      p: null,
+      reason: 'no player rated both',
+    })
     const one = pairedTTest([60], [50])
-    expect(one).toMatchObject({ n: 1, meanDifference: 10, p: null, reason: 'not enough data' })
+    expect(one).toMatchObject({
+      n: 1,
+      meanDifference: 10,
+      p: null,
+      reason: 'only one player rated both',
+    })
+  })
+
+  it('refuses unequal lengths and non-finite values with a clear error', () => {
+    expect(() => pairedTTest([1, 2, 3], [1, 2])).toThrow(/same length \(3 and 2\)/)
+    expect(() => pairedTTest([1, NaN, 3], [1, 2, 4])).toThrow(/finite/)
+    expect(() => oneSampleT([1, Infinity, 3])).toThrow(/entry 1 is Infinity/)
   })
 
   it('says "no variance" when every difference is the same', () => {
@@ -62,11 +78,5 @@ describe('pairedTTest', () => {
       p: null,
       reason: 'no variance',
     })
-  })
-
-  it('leaves out missing values instead of returning NaN', () => {
-    const r = oneSampleT([1, 2, Number.NaN, 4])
-    expect(r.n).toBe(3)
-    expect(Number.isNaN(r.t)).toBe(false)
   })
 })

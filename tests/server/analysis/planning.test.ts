@@ -32,13 +32,14 @@ describe('pairedTSampleSize', () => {
   it('returns reasons instead of NaN or an endless loop', () => {
     expect(pairedTSampleSize({ difference: 0, sd: 10 })).toMatchObject({
       n: null,
-      reason: 'not enough data',
+      reason: 'no difference to detect',
     })
     expect(pairedTSampleSize({ difference: 5, sd: 0 })).toMatchObject({
       n: null,
       reason: 'no variance',
     })
-    expect(pairedTSampleSize({ difference: 5, sd: 10, power: 1.2 }).n).toBeNull()
+    expect(() => pairedTSampleSize({ difference: 5, sd: 10, power: 1.2 })).toThrow(/power/)
+    expect(() => pairedTSampleSize({ difference: NaN, sd: 10 })).toThrow(/finite/)
   })
 })
 
@@ -62,7 +63,10 @@ describe('signTestSampleSize', () => {
   })
 
   it('refuses a share of one half', () => {
-    expect(signTestSampleSize({ share: 0.5 })).toMatchObject({ n: null, reason: 'no variance' })
+    expect(signTestSampleSize({ share: 0.5 })).toMatchObject({
+      n: null,
+      reason: 'no difference to detect',
+    })
   })
 })
 
@@ -82,6 +86,10 @@ describe('triangleSampleSize', () => {
   })
 
   it('returns a reason for pd = 0', () => {
-    expect(triangleSampleSize({ pd: 0 })).toMatchObject({ n: null, reason: 'not enough data' })
+    expect(triangleSampleSize({ pd: 0 })).toMatchObject({
+      n: null,
+      reason: 'no difference to detect',
+    })
+    expect(() => triangleSampleSize({ pd: 1.5 })).toThrow(/between 0 and 1/)
   })
 })

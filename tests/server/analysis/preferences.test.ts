@@ -34,14 +34,14 @@ describe('preferenceFindings', () => {
     const [a, b, c] = scale.abilities
     expect(a.logAbility).toBe(0)
     expect(b.logAbility).toBeGreaterThan(0)
-    expect(c.logAbility).toBeGreaterThan(b.logAbility)
+    expect(c.logAbility).toBeGreaterThan(b.logAbility as number)
   })
 
   it('gives a defined answer when nobody chose', () => {
     const result = preferenceFindings(answers('A', 'B', 0, 0, 4), ['A', 'B'])
-    expect(result.pairs[0].test.reason).toBe('not enough data')
+    expect(result.pairs[0].test.reason).toBe('every answer was no preference')
     expect(result.pairs[0].sentence).toBe('No player chose between A and B; 4 had no preference.')
-    expect(result.scale.reason).toBe('not enough data')
+    expect(result.scale.reason).toBe('a recipe was never compared')
     expect(preferenceFindings([], []).pairs).toEqual([])
   })
 })

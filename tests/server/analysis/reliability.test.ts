@@ -80,7 +80,7 @@ describe('reliability', () => {
       duplicatePairs: 1,
       misses: 1,
       flagged: false,
-      reason: 'not enough data',
+      reason: 'too few hidden duplicates',
     })
     expect(p.panelAgreement).toBeNull()
   })

@@ -48,9 +48,9 @@ describe('triangle test', () => {
     expect(triangleTest(30, 30).pd).toBe(1)
   })
 
-  it('returns "not enough data" for no answers or impossible counts', () => {
-    expect(triangleTest(0, 0)).toMatchObject({ p: null, pd: null, reason: 'not enough data' })
-    expect(triangleTest(5, 3).reason).toBe('not enough data')
+  it('says "no answers" for none, and refuses impossible counts', () => {
+    expect(triangleTest(0, 0)).toMatchObject({ p: null, pd: null, reason: 'no answers' })
+    expect(() => triangleTest(5, 3)).toThrow(/from 0 to n/)
     // Computed: with 2 answers even 2 correct has p = 1/9 > 0.05.
     expect(triangleMinimumCorrect(2, 0.05)).toBeNull()
   })

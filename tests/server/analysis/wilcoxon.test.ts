@@ -97,12 +97,18 @@ describe('wilcoxonSignedRank against @stdlib/stats-wilcoxon (seeded random data)
 })
 
 describe('wilcoxonSignedRank on bad input', () => {
-  it('returns "not enough data" for no pairs', () => {
+  it('refuses unequal lengths and non-finite values with a clear error', () => {
+    expect(() => wilcoxonSignedRank([1, 2, 3], [1, 2])).toThrow(/same length/)
+    expect(() => wilcoxonSignedRank([1, NaN, 3])).toThrow(/finite/)
+    expect(() => wilcoxonSignedRank([1, 2], [1, Infinity])).toThrow(/finite/)
+  })
+
+  it('says "no player rated both" for no pairs', () => {
     expect(wilcoxonSignedRank([], [])).toMatchObject({
       n: 0,
       V: null,
       p: null,
-      reason: 'not enough data',
+      reason: 'no player rated both',
     })
   })
 
