@@ -1,5 +1,7 @@
+import type { Adjustment } from './adjust.ts'
 import { aggregateDense } from './aggregate.ts'
 import { summarizeMean } from './describe.ts'
+import { interimLook, type InterimLook } from './interim.ts'
 import { omnibus, type OmnibusLine } from './omnibus.ts'
 import { recipePairs, type PairRow, type Wording } from './recipePairs.ts'
 import type { Id, Interval, Rating, Reason } from './types.ts'
@@ -26,8 +28,12 @@ export interface FindingsInput {
   attributes?: readonly AttributeInfo[]
   /** Players the analyst excluded (their reasons are kept elsewhere). */
   excludedPlayers?: readonly Id[]
-  /** Level at which a Holm-adjusted difference is called clear (default 0.05). */
+  /** Level at which an adjusted difference is called clear (default 0.05). */
   alpha?: number
+  /** How each attribute's family of pairs is adjusted (default Holm). */
+  adjustment?: Adjustment
+  /** While a session runs: plan the players still needed, for this difference (null: seen). */
+  interim?: { targetDifference: number | null } | null
 }
 
 export interface RecipeMean {
@@ -49,9 +55,13 @@ export interface AttributeFindings {
   recipes: RecipeMean[]
   pairs: PairRow[]
   omnibus: OmnibusLine
+  /** Players still needed for the difference worth finding; null unless asked for. */
+  interim: InterimLook | null
 }
 
 export interface Findings {
+  /** The adjustment every adjusted p in these findings went through. */
+  adjustment: Adjustment
   players: number
   ratings: number
   /** Ratings left out: not a finite number. */
@@ -74,6 +84,7 @@ export function computeFindings(input: FindingsInput): Findings {
   const recipeName = nameLookup(input.recipes)
   const attributeInfo = new Map((input.attributes ?? []).map((a) => [a.id, a]))
   const alpha = input.alpha ?? 0.05
+  const adjustment = input.adjustment ?? 'holm'
 
   const attributes = data.attributes.map((attribute, a) => {
     const info = attributeInfo.get(attribute)
@@ -81,9 +92,12 @@ export function computeFindings(input: FindingsInput): Findings {
       name: info?.name ?? String(attribute),
       higher: info?.higher,
       alpha,
+      adjustment,
+      interim: input.interim ?? null,
     })
   })
   return {
+    adjustment,
     players: data.players.length,
     ratings: ratings.length - data.ignored,
     ignored: data.ignored,
@@ -119,12 +133,20 @@ function attributeFindings(
     return { recipe, name: recipeName(recipe), ...summarizeMean(values) }
   })
 
+  const pairs = recipePairs(active, recipes, recipeName, wording)
+  const overall = omnibus(active, recipes, recipeMeans, wording.name)
   return {
     attribute,
     name: wording.name,
     players: active.length,
     recipes: recipeMeans,
-    pairs: recipePairs(active, recipes, recipeName, wording),
-    omnibus: omnibus(active, recipes, recipeMeans, wording.name),
+    pairs,
+    omnibus: overall,
+    interim: wording.interim
+      ? interimLook(wording.name, pairs, overall.n, {
+          targetDifference: wording.interim.targetDifference,
+          alpha: wording.alpha,
+        })
+      : null,
   }
 }

@@ -22,6 +22,8 @@ export {
   type WilcoxonResult,
 } from './wilcoxon.ts'
 export { holm } from './holm.ts'
+export { benjaminiHochberg } from './benjaminiHochberg.ts'
+export { ADJUSTMENT_LABEL, ADJUSTMENTS, adjustP, type Adjustment } from './adjust.ts'
 export { friedman, type FriedmanResult } from './friedman.ts'
 export {
   binomialLower,
@@ -89,6 +91,7 @@ export {
   type TrianglePlanInput,
 } from './planning.ts'
 export { formatInterval, formatNumber, formatP } from './format.ts'
+export { interimLook, type InterimLook, type InterimOptions } from './interim.ts'
 export { omnibusSentence, pairSentence, type PairWording } from './sentences.ts'
 export {
   computeFindings,

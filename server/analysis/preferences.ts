@@ -1,7 +1,7 @@
 import { signTest, type SignTestResult } from './binomial.ts'
 import { bradleyTerry, type BradleyTerryResult } from './bradleyTerry.ts'
+import { ADJUSTMENT_LABEL, adjustP, type Adjustment } from './adjust.ts'
 import { formatP } from './format.ts'
-import { holm } from './holm.ts'
 import type { Id } from './types.ts'
 
 /** One pair-preference answer; `preferred` is null for "no preference". */
@@ -20,8 +20,8 @@ export interface PreferencePair {
   noPreference: number
   /** Exact two-sided sign test of firstPreferred against an even split, no-preference set aside. */
   test: SignTestResult
-  /** Holm-adjusted across all pairs of this session. */
-  holmP: number | null
+  /** Adjusted (Holm or BH, as the session chose) across all pairs of this session. */
+  adjustedP: number | null
   sentence: string
 }
 
@@ -41,6 +41,7 @@ export function preferenceFindings(
   answers: readonly PreferenceAnswer[],
   recipes: readonly Id[],
   names: (id: Id) => string = String,
+  adjustment: Adjustment = 'holm',
 ): PreferenceFindings {
   const index = new Map(recipes.map((id, i) => [id, i]))
   const k = recipes.length
@@ -60,7 +61,7 @@ export function preferenceFindings(
     else if (winner === j) wins[j][i]++
   }
 
-  const raw: Omit<PreferencePair, 'holmP' | 'sentence'>[] = []
+  const raw: Omit<PreferencePair, 'adjustedP' | 'sentence'>[] = []
   for (let i = 0; i < k; i++) {
     for (let j = i + 1; j < k; j++) {
       const asked = wins[i][j] + wins[j][i] + ties[i][j]
@@ -75,23 +76,27 @@ export function preferenceFindings(
       })
     }
   }
-  const adjusted = holm(raw.map((p) => p.test.p))
+  const adjusted = adjustP(
+    raw.map((p) => p.test.p),
+    adjustment,
+  )
   const pairs = raw.map((p, n) => ({
     ...p,
-    holmP: adjusted[n],
-    sentence: preferenceSentence(p, adjusted[n], names),
+    adjustedP: adjusted[n],
+    sentence: preferenceSentence(p, adjusted[n], names, ADJUSTMENT_LABEL[adjustment]),
   }))
   return { pairs, scale: bradleyTerry(recipes, wins) }
 }
 
 function preferenceSentence(
-  p: Omit<PreferencePair, 'holmP' | 'sentence'>,
-  holmP: number | null,
+  p: Omit<PreferencePair, 'adjustedP' | 'sentence'>,
+  adjustedP: number | null,
   names: (id: Id) => string,
+  label: string,
 ): string {
   const chose = p.firstPreferred + p.secondPreferred
   const aside = p.noPreference > 0 ? `; ${p.noPreference} had no preference` : ''
-  if (chose === 0 || holmP === null || p.test.ci === null) {
+  if (chose === 0 || adjustedP === null || p.test.ci === null) {
     return `No player chose between ${names(p.first)} and ${names(p.second)}${aside}.`
   }
   const firstLeads = p.firstPreferred >= p.secondPreferred
@@ -100,6 +105,6 @@ function preferenceSentence(
   const ci = firstLeads ? p.test.ci : { lower: 1 - p.test.ci.upper, upper: 1 - p.test.ci.lower }
   return (
     `${names(leader)} was preferred in ${count} of ${chose} choices (${percent(count / chose)}, ` +
-    `95% CI ${percent(ci.lower)} to ${percent(ci.upper)}), Holm p ${formatP(holmP)}${aside}.`
+    `95% CI ${percent(ci.lower)} to ${percent(ci.upper)}), ${label} p ${formatP(adjustedP)}${aside}.`
   )
 }

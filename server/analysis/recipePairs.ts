@@ -1,11 +1,11 @@
-import { holm } from './holm.ts'
+import { ADJUSTMENT_LABEL, adjustP, type Adjustment } from './adjust.ts'
 import { oneSampleT, type PairedTResult } from './paired.ts'
 import { pairSentence } from './sentences.ts'
 import type { Id, Interval, Reason } from './types.ts'
 import { wilcoxonSignedRank } from './wilcoxon.ts'
 
 // Every recipe pair on one attribute: paired t and Wilcoxon signed-rank on complete cases,
-// Holm-adjusted within the attribute, with the sentence the findings page shows.
+// adjusted (Holm or BH) within the attribute, with the sentence the findings page shows.
 
 export interface PairRow {
   first: Id
@@ -16,15 +16,17 @@ export interface PairRow {
   dropped: number
   /** Mean of second − first, with its 95% CI. */
   difference: number | null
+  /** SD of the players' differences. */
+  sdDifference: number | null
   ci: Interval | null
   t: number | null
   df: number | null
   p: number | null
-  holmP: number | null
+  adjustedP: number | null
   wilcoxonV: number | null
   wilcoxonP: number | null
   wilcoxonMethod: 'exact' | 'normal' | null
-  wilcoxonHolmP: number | null
+  wilcoxonAdjustedP: number | null
   dz: number | null
   rankBiserial: number | null
   sentence: string
@@ -35,6 +37,8 @@ export interface Wording {
   name: string
   higher?: string
   alpha: number
+  adjustment: Adjustment
+  interim?: { targetDifference: number | null } | null
 }
 
 /**
@@ -48,7 +52,7 @@ export function recipePairs(
   wording: Wording,
 ): PairRow[] {
   const k = recipes.length
-  const pairs: Omit<PairRow, 'holmP' | 'wilcoxonHolmP' | 'sentence'>[] = []
+  const pairs: Omit<PairRow, 'adjustedP' | 'wilcoxonAdjustedP' | 'sentence'>[] = []
   const tResults: PairedTResult[] = []
   const buffer = new Float64Array(active.length)
   for (let i = 0; i < k; i++) {
@@ -69,6 +73,7 @@ export function recipePairs(
         n,
         dropped: active.length - n,
         difference: t.meanDifference,
+        sdDifference: t.sdDifference,
         ci: t.ci,
         t: t.t,
         df: t.df,
@@ -82,9 +87,16 @@ export function recipePairs(
       })
     }
   }
-  // Holm within this attribute's family of pairs, once for each test.
-  const holmT = holm(pairs.map((p) => p.p))
-  const holmW = holm(pairs.map((p) => p.wilcoxonP))
+  // One family per attribute, adjusted once for each test.
+  const adjustedT = adjustP(
+    pairs.map((p) => p.p),
+    wording.adjustment,
+  )
+  const adjustedW = adjustP(
+    pairs.map((p) => p.wilcoxonP),
+    wording.adjustment,
+  )
+  const label = ADJUSTMENT_LABEL[wording.adjustment]
   return pairs.map((row, index) => {
     const words = {
       first: recipeName(row.first),
@@ -94,9 +106,9 @@ export function recipePairs(
     }
     return {
       ...row,
-      holmP: holmT[index],
-      wilcoxonHolmP: holmW[index],
-      sentence: pairSentence(words, tResults[index], holmT[index], wording.alpha),
+      adjustedP: adjustedT[index],
+      wilcoxonAdjustedP: adjustedW[index],
+      sentence: pairSentence(words, tResults[index], adjustedT[index], wording.alpha, label),
     }
   })
 }

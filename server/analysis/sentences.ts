@@ -12,14 +12,16 @@ export interface PairWording {
 
 /**
  * The plain sentence for one pair. `t` holds second − first. The higher-rated recipe leads so
- * the number is always positive; a difference that does not survive Holm is said to be unclear
+ * the number is always positive; a difference that does not survive the adjustment (Holm or
+ * BH, named by `label`) is said to be unclear
  * before any number is given, so a skimming reader is not misled.
  */
 export function pairSentence(
   words: PairWording,
   t: PairedTResult,
-  holmP: number | null,
+  adjustedP: number | null,
   alpha = 0.05,
+  label = 'Holm',
 ): string {
   const { first, second, attribute } = words
   const d = t.meanDifference
@@ -33,15 +35,15 @@ export function pairSentence(
   if (t.reason === 'no player rated both') {
     return `No player has rated both ${first} and ${second} on ${attribute} yet.`
   }
-  if (d === null || t.ci === null || holmP === null) {
+  if (d === null || t.ci === null || adjustedP === null) {
     return `No comparison of ${first} and ${second} on ${attribute} yet: ${t.n} ${players(t.n)} rated both, and a test needs two.`
   }
   const secondHigher = d >= 0
   const high = secondHigher ? second : first
   const low = secondHigher ? first : second
   const ci = secondHigher ? t.ci : { lower: -t.ci.upper, upper: -t.ci.lower }
-  const detail = `by ${formatNumber(Math.abs(d))} points (95% CI ${formatInterval(ci)}), Holm p ${formatP(holmP)}`
-  if (holmP < alpha) return `${high} is rated ${comparative(words)} than ${low} ${detail}.`
+  const detail = `by ${formatNumber(Math.abs(d))} points (95% CI ${formatInterval(ci)}), ${label} p ${formatP(adjustedP)}`
+  if (adjustedP < alpha) return `${high} is rated ${comparative(words)} than ${low} ${detail}.`
   return `No clear difference between ${first} and ${second} on ${attribute}: ${high} is rated ${comparative(words)} ${detail}.`
 }
 

@@ -1,11 +1,13 @@
 import { formatOf } from '../formats/index.ts'
 import type { Knex } from 'knex'
 import {
-  holm,
+  ADJUSTMENT_LABEL,
+  adjustP,
   oneSampleT,
   pairSentence,
   summarizeMean,
   wilcoxonSignedRank,
+  type Adjustment,
   type Id,
   type Rating,
 } from '../analysis/index.ts'
@@ -89,6 +91,7 @@ export function agingFindings(
   points: TimePointRatings[],
   recipes: RecipeRef[],
   attributes: AttributeSpec[],
+  adjustment: Adjustment = 'holm',
 ): AgingFindings {
   const means = points.map((p) => playerMeans(p.ratings))
   const info = attributeInfo(attributes)
@@ -112,7 +115,7 @@ export function agingFindings(
         }),
       }))
       const raw: {
-        row: Omit<AgingChange, 'holmP' | 'sentence'>
+        row: Omit<AgingChange, 'adjustedP' | 'wilcoxonAdjustedP' | 'sentence'>
         t: ReturnType<typeof oneSampleT>
       }[] = []
       for (const recipe of recipes) {
@@ -139,18 +142,29 @@ export function agingFindings(
               t: t.t,
               df: t.df,
               p: t.p,
+              wilcoxonV: w.V,
               wilcoxonP: w.p,
+              wilcoxonMethod: w.method,
               dz: t.dz,
+              rankBiserial: w.rankBiserial,
               reason: t.reason,
             },
           })
         }
       }
-      // One family per attribute, as for the recipe pairs.
-      const adjusted = holm(raw.map((r) => r.row.p))
+      // One family per attribute and test, adjusted as the session chose, as the recipe pairs.
+      const adjusted = adjustP(
+        raw.map((r) => r.row.p),
+        adjustment,
+      )
+      const adjustedW = adjustP(
+        raw.map((r) => r.row.wilcoxonP),
+        adjustment,
+      )
       const changes = raw.map(({ row, t }, k) => ({
         ...row,
-        holmP: adjusted[k],
+        adjustedP: adjusted[k],
+        wilcoxonAdjustedP: adjustedW[k],
         sentence: pairSentence(
           {
             first: `${row.name} at ${row.from}`,
@@ -160,6 +174,8 @@ export function agingFindings(
           },
           t,
           adjusted[k],
+          0.05,
+          ADJUSTMENT_LABEL[adjustment],
         ),
       }))
       return { attribute: a.id, name: a.name, series, changes }

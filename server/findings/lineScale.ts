@@ -1,6 +1,7 @@
 /* Findings of line-scale ratings: per attribute, the recipes' means, the pairs and the omnibus. */
 import {
   computeFindings,
+  type Adjustment,
   type AttributeFindings as EngineAttribute,
   type Id,
   type Rating,
@@ -18,12 +19,16 @@ export function lineScaleFindings(
   recipes: RecipeRef[],
   attributes: AttributeSpec[],
   excluded: Id[],
+  adjustment: Adjustment = 'holm',
+  interim: { targetDifference: number | null } | null = null,
 ): AttributeFindings[] {
   const findings = computeFindings({
     ratings,
     recipes,
     attributes: attributeInfo(attributes),
     excludedPlayers: excluded,
+    adjustment,
+    interim,
   })
   const spec = new Map(attributes.map((a) => [a.key, a]))
   return findings.attributes.map((a) => toShared(a, spec.get(String(a.attribute))))
@@ -40,5 +45,6 @@ function toShared(a: EngineAttribute, spec: AttributeSpec | undefined): Attribut
     recipes: a.recipes.map((r) => ({ ...r, recipe: Number(r.recipe) })),
     pairs: a.pairs.map((p) => ({ ...p, first: Number(p.first), second: Number(p.second) })),
     omnibus: { ...a.omnibus, recipes: a.omnibus.recipes.map(Number) },
+    interim: a.interim,
   }
 }

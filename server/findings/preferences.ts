@@ -2,7 +2,15 @@
  * Findings of pair answers: which recipe players preferred, the scale fitted to those choices,
  * and per attribute which of two recipes was judged to have more of it.
  */
-import { formatP, holm, preferenceFindings, signTest, type Id } from '../analysis/index.ts'
+import {
+  ADJUSTMENT_LABEL,
+  adjustP,
+  formatP,
+  preferenceFindings,
+  signTest,
+  type Adjustment,
+  type Id,
+} from '../analysis/index.ts'
 import type { AttributeSpec } from '../../shared/schemas/sessions'
 import type { MorePair, PreferenceFindings, RecipeRef } from '../../shared/schemas/findings'
 import type { ResolvedAnswers } from './answersToRatings'
@@ -12,11 +20,12 @@ export function pairPreferences(
   answers: ResolvedAnswers,
   recipes: RecipeRef[],
   attributes: AttributeSpec[],
+  adjustment: Adjustment = 'holm',
 ): PreferenceFindings {
   const names = new Map<Id, string>(recipes.map((r) => [r.id, r.name]))
   const name = (id: Id) => names.get(id) ?? String(id)
   const ids = recipes.map((r) => r.id)
-  const engine = preferenceFindings(answers.preferences, ids, name)
+  const engine = preferenceFindings(answers.preferences, ids, name, adjustment)
   return {
     answers: answers.preferences.length,
     pairs: engine.pairs.map((p) => ({ ...p, first: Number(p.first), second: Number(p.second) })),
@@ -35,19 +44,20 @@ export function pairPreferences(
     attributes: attributes.map((a) => ({
       attribute: a.key,
       name: a.name,
-      pairs: morePairs(answers, a, ids, name),
+      pairs: morePairs(answers, a, ids, name, adjustment),
     })),
   }
 }
 
-/** Sign tests for "which has more", Holm-adjusted within the attribute like the rated pairs. */
+/** Sign tests for "which has more", adjusted within the attribute like the rated pairs. */
 function morePairs(
   answers: ResolvedAnswers,
   attribute: AttributeSpec,
   ids: number[],
   name: (id: Id) => string,
+  adjustment: Adjustment,
 ): MorePair[] {
-  const raw: Omit<MorePair, 'holmP' | 'sentence'>[] = []
+  const raw: Omit<MorePair, 'adjustedP' | 'sentence'>[] = []
   for (let i = 0; i < ids.length; i++) {
     for (let j = i + 1; j < ids.length; j++) {
       let firstMore = 0
@@ -70,17 +80,20 @@ function morePairs(
       })
     }
   }
-  const adjusted = holm(raw.map((r) => r.test.p))
+  const adjusted = adjustP(
+    raw.map((r) => r.test.p),
+    adjustment,
+  )
   const word = HIGHER[attribute.key] ?? `higher on ${attribute.name.toLowerCase()}`
   return raw.map((r, k) => {
     const firstLeads = r.firstMore >= r.secondMore
     const lead = firstLeads ? r.firstMore : r.secondMore
     const total = r.firstMore + r.secondMore
-    const holmP = adjusted[k]
+    const adjustedP = adjusted[k]
     const sentence =
       `${name(firstLeads ? r.first : r.second)} was judged ${word} than ` +
       `${name(firstLeads ? r.second : r.first)} in ${lead} of ${total} choices (${percent(lead / total)})` +
-      (holmP === null ? '.' : `, Holm p ${formatP(holmP)}.`)
-    return { ...r, holmP, sentence }
+      (adjustedP === null ? '.' : `, ${ADJUSTMENT_LABEL[adjustment]} p ${formatP(adjustedP)}.`)
+    return { ...r, adjustedP, sentence }
   })
 }

@@ -38,6 +38,7 @@ export async function computeSessionFindings(
     counted.length === players.length ? all : answersOf(all, new Set(counted.map((p) => p.code)))
   const excluded = players.filter((p) => p.exclusionReason !== null).map((p) => p.code)
   const format = session.format
+  const adjustment = session.adjustment ?? 'holm'
   const parts = new Set(formatOf(format).findings)
   const answering = {
     readable: answeringPlayers(all),
@@ -54,6 +55,7 @@ export async function computeSessionFindings(
       format,
       status: session.status,
       timePointLabel: session.time_point_label,
+      adjustment,
     },
     summary: summaryOf(players, answersInGroup),
     filters: {
@@ -67,15 +69,27 @@ export async function computeSessionFindings(
     reason: topReason(answersInGroup, answering, data.answers),
     recipes,
     attributes: parts.has('attributes')
-      ? lineScaleFindings(kept.ratings, recipes, attributes, excluded)
+      ? lineScaleFindings(
+          kept.ratings,
+          recipes,
+          attributes,
+          excluded,
+          adjustment,
+          // Planning is for a session still collecting answers; a closed one has its panel.
+          session.status === 'open'
+            ? { targetDifference: session.target_difference ?? null }
+            : null,
+        )
       : [],
-    preferences: parts.has('preferences') ? pairPreferences(kept, recipes, attributes) : null,
+    preferences: parts.has('preferences')
+      ? pairPreferences(kept, recipes, attributes, adjustment)
+      : null,
     triangle: parts.has('triangle') ? triangleFindings(kept) : null,
     reliability: reliabilityFindings(all.ratings, players),
     objective: parts.has('objective')
       ? objectiveFindings(kept.ratings, await clipMeasures(db, clips), attributes)
       : [],
-    aging: timePoints ? agingFindings(timePoints, recipes, attributes) : null,
+    aging: timePoints ? agingFindings(timePoints, recipes, attributes, adjustment) : null,
     provenance: await provenanceOf(db, data),
   }
   return { findings, data }

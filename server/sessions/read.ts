@@ -52,6 +52,8 @@ export async function getSession(knex: Knex, id: number, now: Date): Promise<Ses
     attributes: design.attributes,
     duplicates: s.duplicates,
     allowNoPreference: Boolean(s.allow_no_preference),
+    adjustment: s.adjustment ?? 'holm',
+    targetDifference: s.target_difference ?? null,
     playerTitle: s.player_title,
     playerMessage: s.player_message,
     reminderDaysBefore: s.reminder_days_before,

@@ -8,6 +8,7 @@ import type {
   SessionFormat,
   SessionStatus,
   SessionSummary,
+  PAdjustment,
 } from '../../shared/schemas/sessions'
 
 export interface SessionRow {
@@ -22,6 +23,9 @@ export interface SessionRow {
   attributes: string
   duplicates: number
   allow_no_preference: number | boolean
+  /** 'holm' or 'bh': how the findings adjust each family of pairs. */
+  adjustment: PAdjustment
+  target_difference: number | null
   /** The only session words players see; name and purpose stay with staff. */
   player_title: string
   player_message: string

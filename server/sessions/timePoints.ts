@@ -44,6 +44,8 @@ export async function addTimePoint(
       attributes: design.attributes,
       duplicates: design.duplicates,
       allowNoPreference: Boolean(source.allow_no_preference),
+      adjustment: source.adjustment ?? 'holm',
+      targetDifference: source.target_difference ?? null,
       playerTitle: source.player_title,
       playerMessage: source.player_message,
       deadline: body.deadline,

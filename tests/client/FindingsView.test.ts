@@ -20,6 +20,7 @@ const findings: SessionFindings = {
     name: 'Harewood A damping',
     format: 'rating',
     status: 'closed',
+    adjustment: 'holm',
     timePointLabel: null,
   },
   summary: { invited: 12, done: 12, inProgress: 0, excluded: 1, answers: 312, completion: 1 },

@@ -38,6 +38,8 @@ const session = {
   attributes: [],
   duplicates: 0,
   allowNoPreference: false,
+  adjustment: 'holm',
+  targetDifference: null,
   playerTitle: 'Evening listening',
   playerMessage: '',
   reminderDaysBefore: null,

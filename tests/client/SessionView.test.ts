@@ -56,6 +56,8 @@ function detail(over: Partial<SessionDetail> = {}): SessionDetail {
     attributes: [],
     duplicates: 1,
     allowNoPreference: false,
+    adjustment: 'holm',
+    targetDifference: null,
     playerTitle: 'Evening listening',
     playerMessage: '',
     reminderDaysBefore: null,

@@ -32,6 +32,8 @@ const session = (over: Partial<SessionDetail> = {}): SessionDetail => ({
   attributes: [],
   duplicates: 0,
   allowNoPreference: false,
+  adjustment: 'holm',
+  targetDifference: null,
   playerTitle: 'Strings to try at home',
   playerMessage: 'Play each set for two days.',
   reminderDaysBefore: 2,

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parse as parseCsv } from 'csv-parse/sync'
 import { fixedClock } from '../../server/clock'
-import { computeFindings, type Rating } from '../../server/analysis/index.ts'
+import { benjaminiHochberg, computeFindings, type Rating } from '../../server/analysis/index.ts'
 import { type PlannedTrial } from '../../server/design/index.ts'
 import { buildPlayerPlan } from '../../server/formats/index.ts'
 import { seedDemoSessions } from '../../seeds/demo/sessions'
@@ -11,6 +11,7 @@ import type { TrialAnswer } from '../../shared/schemas/rating'
 import type { SessionFindings } from '../../shared/schemas/findings'
 import { buildApp, createStaff, signInAs, type Agent, type TestApp } from './helpers'
 import { addClip, addPlayers, isoDay, openStudy, studyFixture } from './sessionFixtures'
+import { saveEdit } from './editing'
 
 const clock = fixedClock(new Date('2026-12-01T09:00:00Z'))
 let t: TestApp
@@ -45,7 +46,12 @@ async function study(
   format: 'rating' | 'pair' | 'triangle',
   players: number,
   answerFor: ((recipeIds: number[]) => Answerer) | null,
-  options: { recipes?: number; duplicates?: number; violas?: number } = {},
+  options: {
+    recipes?: number
+    duplicates?: number
+    violas?: number
+    adjustment?: 'holm' | 'bh'
+  } = {},
 ): Promise<Study> {
   const { recipeIds, clipSets } = await studyFixture(t.knex, options.recipes ?? 3, 2, 'Finding')
   const { id } = await openStudy(developer, {
@@ -54,6 +60,7 @@ async function study(
     recipeIds,
     clipSets,
     duplicates: options.duplicates ?? (format === 'rating' ? 2 : 0),
+    ...(options.adjustment ? { adjustment: options.adjustment } : {}),
     deadline: isoDay(clock.now(), 14),
   })
   const violas = options.violas ?? 0
@@ -149,19 +156,44 @@ describe('findings of an attribute rating session', () => {
       expect(a.players).toBe(8)
       expect(a.recipes.map((r) => r.mean)).toEqual(e.recipes.map((r) => r.mean))
       expect(a.recipes.map((r) => r.ci)).toEqual(e.recipes.map((r) => r.ci))
-      expect(a.pairs.map((p) => [p.difference, p.t, p.p, p.holmP, p.wilcoxonP, p.dz])).toEqual(
-        e.pairs.map((p) => [p.difference, p.t, p.p, p.holmP, p.wilcoxonP, p.dz]),
+      expect(a.pairs.map((p) => [p.difference, p.t, p.p, p.adjustedP, p.wilcoxonP, p.dz])).toEqual(
+        e.pairs.map((p) => [p.difference, p.t, p.p, p.adjustedP, p.wilcoxonP, p.dz]),
       )
       expect(a.omnibus.p).toEqual(e.omnibus.p)
     }
     const brightness = f.attributes.find((a) => a.attribute === 'brightness')!
-    expect(brightness.pairs.every((p) => p.difference! < 0 && p.holmP! < 0.05)).toBe(true)
+    expect(brightness.pairs.every((p) => p.difference! < 0 && p.adjustedP! < 0.05)).toBe(true)
     expect(brightness.pairs[0].sentence).toMatch(/brighter than/)
     // A constant attribute is answered with a reason, not a number out of thin air.
     const bow = f.attributes.find((a) => a.attribute === 'bow_response')!
     expect(bow.pairs.every((p) => p.reason === 'no variance' && p.p === null)).toBe(true)
     expect(bow.omnibus.reason).toBe('no variance')
     expectNoNaN(f)
+  })
+
+  it('adjusts by Benjamini–Hochberg when the design chose it, names it, and locks the choice', async () => {
+    const bh = await study('rating', 8, leaning, { recipes: 4, adjustment: 'bh' })
+    const f = await findingsOf(analyst, bh.id)
+    expect(f.session.adjustment).toBe('bh')
+    const holm = await findingsOf(analyst, s.id)
+    expect(holm.session.adjustment).toBe('holm')
+    const warmth = f.attributes.find((a) => a.attribute === 'warmth')!
+    // BH over the attribute's own family (benjaminiHochberg is checked against R's p.adjust).
+    expect(warmth.pairs.map((p) => p.adjustedP)).toEqual(
+      benjaminiHochberg(warmth.pairs.map((p) => p.p)),
+    )
+    expect(warmth.pairs.map((p) => p.wilcoxonAdjustedP)).toEqual(
+      benjaminiHochberg(warmth.pairs.map((p) => p.wilcoxonP)),
+    )
+    const brightness = f.attributes.find((a) => a.attribute === 'brightness')!
+    expect(brightness.pairs[0].sentence).toMatch(/, BH p /)
+    const csv = await analyst.get(`/api/findings/${bh.id}/export/pairs.csv`)
+    const rows = parseCsv(csv.text, { columns: true }) as Record<string, string>[]
+    expect(rows.every((r) => r.adjustment === 'Benjamini-Hochberg')).toBe(true)
+    // Players have answered: the choice can no longer follow the results.
+    const changed = await saveEdit(developer, `/api/sessions/${bh.id}`, { adjustment: 'holm' })
+    expect(changed.status).toBe(409)
+    expect(changed.body.error.fields).toHaveProperty('adjustment')
   })
 
   it('lists every player for reliability, with the rule in words', async () => {
@@ -526,9 +558,9 @@ describe('the demo sessions', () => {
       // The demo's answers follow each player's random blind codes and order, so the p moves
       // from run to run (0.014 seen once); "clear" is Holm-adjusted significance at the
       // conventional 5 % level (common practice), the omnibus test below stays at 0.001.
-      expect(pairOf('brightness', a, b).holmP!).toBeLessThan(0.05)
+      expect(pairOf('brightness', a, b).adjustedP!).toBeLessThan(0.05)
     expect(brightness.omnibus.p!).toBeLessThan(0.001)
-    expect(warmth.pairs.every((p) => p.holmP! > 0.05)).toBe(true)
+    expect(warmth.pairs.every((p) => p.adjustedP! > 0.05)).toBe(true)
     expect(warmth.omnibus.p!).toBeGreaterThan(0.05)
     expect(f.reliability.players.filter((p) => p.flagged)).toHaveLength(1)
 

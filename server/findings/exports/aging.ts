@@ -1,4 +1,4 @@
-import { hi, lo, type ExportTable } from './csv'
+import { adjustmentOf, hi, lo, type ExportTable } from './csv'
 
 // The time trend of an aging study: each recipe's change from the first time point.
 
@@ -15,9 +15,14 @@ export const aging: ExportTable = {
     't',
     'df',
     'p',
-    'holm_p',
+    'p_adjusted',
+    'wilcoxon_v',
     'wilcoxon_p',
+    'wilcoxon_method',
+    'wilcoxon_p_adjusted',
+    'adjustment',
     'dz',
+    'rank_biserial',
     'sentence',
     'reason',
   ],
@@ -35,9 +40,14 @@ export const aging: ExportTable = {
         c.t,
         c.df,
         c.p,
-        c.holmP,
+        c.adjustedP,
+        c.wilcoxonV,
         c.wilcoxonP,
+        c.wilcoxonMethod,
+        c.wilcoxonAdjustedP,
+        adjustmentOf(f),
         c.dz,
+        c.rankBiserial,
         c.sentence,
         c.reason,
       ]),

@@ -1,4 +1,4 @@
-import { hi, lo, type ExportTable } from './csv'
+import { adjustmentOf, hi, lo, type ExportTable } from './csv'
 
 // The attribute rating tables: means per recipe, recipe pairs and the omnibus test per
 // attribute, and the clip measures against what players perceived.
@@ -24,11 +24,12 @@ export const pairs: ExportTable = {
     't',
     'df',
     'p',
-    'holm_p',
+    'p_adjusted',
     'wilcoxon_v',
     'wilcoxon_p',
     'wilcoxon_method',
-    'wilcoxon_holm_p',
+    'wilcoxon_p_adjusted',
+    'adjustment',
     'dz',
     'rank_biserial',
     'sentence',
@@ -48,11 +49,12 @@ export const pairs: ExportTable = {
         p.t,
         p.df,
         p.p,
-        p.holmP,
+        p.adjustedP,
         p.wilcoxonV,
         p.wilcoxonP,
         p.wilcoxonMethod,
-        p.wilcoxonHolmP,
+        p.wilcoxonAdjustedP,
+        adjustmentOf(f),
         p.dz,
         p.rankBiserial,
         p.sentence,

@@ -23,6 +23,10 @@ export function toCsv(header: readonly string[], rows: readonly (readonly Cell[]
   return [header, ...rows].map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n'
 }
 
+/** The adjustment's name as the tables print it, beside every adjusted p. */
+export const adjustmentOf = (f: SessionFindings) =>
+  f.session.adjustment === 'bh' ? 'Benjamini-Hochberg' : 'Holm'
+
 export const lo = (ci: Interval | null) => ci?.lower ?? null
 export const hi = (ci: Interval | null) => ci?.upper ?? null
 

@@ -1,4 +1,4 @@
-import { hi, lo, type ExportTable } from './csv'
+import { adjustmentOf, hi, lo, type ExportTable } from './csv'
 
 // The pair tables: preference and "which has more" counts with their sign tests, and the
 // preference scale.
@@ -15,7 +15,8 @@ export const preferences: ExportTable = {
     'ci_lower',
     'ci_upper',
     'p',
-    'holm_p',
+    'p_adjusted',
+    'adjustment',
     'sentence',
   ],
   rows: (f, name) => {
@@ -33,7 +34,8 @@ export const preferences: ExportTable = {
         lo(p.test.ci),
         hi(p.test.ci),
         p.test.p,
-        p.holmP,
+        p.adjustedP,
+        adjustmentOf(f),
         p.sentence,
       ]),
       // "Which has more" has no "no preference" answer, so that cell stays empty.
@@ -49,7 +51,8 @@ export const preferences: ExportTable = {
           lo(p.test.ci),
           hi(p.test.ci),
           p.test.p,
-          p.holmP,
+          p.adjustedP,
+          adjustmentOf(f),
           p.sentence,
         ]),
       ),

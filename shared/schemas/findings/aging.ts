@@ -26,9 +26,15 @@ export interface AgingChange {
   t: number | null
   df: number | null
   p: number | null
-  holmP: number | null
+  adjustedP: number | null
+  /** Wilcoxon signed-rank on the same players' changes, as the recipe pairs. */
+  wilcoxonV: number | null
   wilcoxonP: number | null
+  wilcoxonMethod: 'exact' | 'normal' | null
+  wilcoxonAdjustedP: number | null
   dz: number | null
+  /** Matched-pairs rank-biserial correlation of the changes. */
+  rankBiserial: number | null
   sentence: string
   reason: FindingsReason
 }

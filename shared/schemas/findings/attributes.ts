@@ -21,15 +21,17 @@ export interface PairRow {
   n: number
   dropped: number
   difference: number | null
+  /** SD of the players' differences: what planning more players starts from. */
+  sdDifference: number | null
   ci: Interval | null
   t: number | null
   df: number | null
   p: number | null
-  holmP: number | null
+  adjustedP: number | null
   wilcoxonV: number | null
   wilcoxonP: number | null
   wilcoxonMethod: 'exact' | 'normal' | null
-  wilcoxonHolmP: number | null
+  wilcoxonAdjustedP: number | null
   dz: number | null
   rankBiserial: number | null
   sentence: string
@@ -61,4 +63,22 @@ export interface AttributeFindings {
   recipes: RecipeMean[]
   pairs: PairRow[]
   omnibus: OmnibusLine
+  /** While the session runs: players still needed for the difference worth finding. */
+  interim: InterimLook | null
+}
+
+/** The interim look at one attribute: a plan for more players, never advice to stop. */
+export interface InterimLook {
+  complete: number
+  difference: number | null
+  differenceSource: 'design' | 'observed' | null
+  sd: number | null
+  alphaPerPair: number | null
+  pairs: number
+  targetPower: number
+  powerNow: number | null
+  needed: number | null
+  more: number | null
+  sentence: string
+  reason: FindingsReason
 }

@@ -21,7 +21,7 @@ export interface PreferencePair {
   secondPreferred: number
   noPreference: number
   test: SignTest
-  holmP: number | null
+  adjustedP: number | null
   sentence: string
 }
 
@@ -52,7 +52,7 @@ export interface MorePair {
   firstMore: number
   secondMore: number
   test: SignTest
-  holmP: number | null
+  adjustedP: number | null
   sentence: string
 }
 

@@ -1,5 +1,5 @@
 import type { Instrument, PlayerLevel } from '../../constants'
-import type { SessionFormat, SessionStatus } from '../sessions/design'
+import type { PAdjustment, SessionFormat, SessionStatus } from '../sessions/design'
 import type { AgingFindings } from './aging'
 import type { AttributeFindings } from './attributes'
 import type { FindingsReason, RecipeRef } from './common'
@@ -42,6 +42,8 @@ export interface SessionFindings {
     format: SessionFormat
     status: SessionStatus
     timePointLabel: string | null
+    /** How every adjusted p on the page was adjusted: the session's design chose it. */
+    adjustment: PAdjustment
   }
   summary: FindingsSummary
   filters: {

@@ -5,6 +5,14 @@ import { visibleText } from '../visibleText'
 import { namesAChange, revision } from '../revision'
 import { attributeSpec, DEFAULT_ATTRIBUTES } from './attributes'
 
+/**
+ * How each family of pairs is adjusted for being many: Holm holds the chance of any false
+ * "clear difference" at α; Benjamini–Hochberg (BH) holds the expected share of false ones among
+ * those called clear at α, and loses less power when many recipes are compared.
+ */
+export const P_ADJUSTMENTS = ['holm', 'bh'] as const
+export type PAdjustment = (typeof P_ADJUSTMENTS)[number]
+
 // What a session is: its format and status, and the design a developer sends to make or
 // change one.
 
@@ -52,6 +60,13 @@ export const sessionDesignFields = {
     .refine((a) => new Set(a.map((x) => x.key)).size === a.length, 'Two attributes share a key'),
   duplicates: z.number().int().min(0, 'Cannot be negative').max(50),
   allowNoPreference: z.boolean(),
+  adjustment: z.enum(P_ADJUSTMENTS, 'Choose Holm or Benjamini–Hochberg'),
+  /** Smallest difference worth finding, in rating points: what the interim look plans for. */
+  targetDifference: z
+    .number('A number of rating points')
+    .gt(0, 'Above 0')
+    .max(100, 'At most 100 points')
+    .nullable(),
   playerTitle: visibleText(
     z
       .string()
@@ -94,6 +109,8 @@ export const sessionDesignBody = z
     attributes: sessionDesignFields.attributes.default(DEFAULT_ATTRIBUTES),
     duplicates: sessionDesignFields.duplicates.default(0),
     allowNoPreference: sessionDesignFields.allowNoPreference.default(false),
+    adjustment: sessionDesignFields.adjustment.default('holm'),
+    targetDifference: sessionDesignFields.targetDifference.default(null),
     playerMessage: sessionDesignFields.playerMessage.default(''),
     reminderDaysBefore: sessionDesignFields.reminderDaysBefore.default(2),
     timePointLabel: timePointLabel.nullable().default(null),
@@ -116,6 +133,8 @@ export const updateSessionBody = z
     attributes: sessionDesignFields.attributes.optional(),
     duplicates: sessionDesignFields.duplicates.optional(),
     allowNoPreference: sessionDesignFields.allowNoPreference.optional(),
+    adjustment: sessionDesignFields.adjustment.optional(),
+    targetDifference: sessionDesignFields.targetDifference.optional(),
     playerTitle: sessionDesignFields.playerTitle.optional(),
     playerMessage: sessionDesignFields.playerMessage.optional(),
     deadline: sessionDesignFields.deadline.optional(),
@@ -134,6 +153,8 @@ export const LOCKED_DESIGN_FIELDS = [
   'attributes',
   'duplicates',
   'allowNoPreference',
+  'adjustment',
+  'targetDifference',
 ] as const
 
 /** Opening a draft: an empty body, or the designer's acceptance of a single-take warning. */

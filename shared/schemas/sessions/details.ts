@@ -1,5 +1,5 @@
 import type { AttributeSpec } from './attributes'
-import type { ClipSetSpec, SessionFormat, SessionStatus } from './design'
+import type { ClipSetSpec, PAdjustment, SessionFormat, SessionStatus } from './design'
 
 // Sessions as staff see them: the list and one session with its resolved design.
 
@@ -74,6 +74,10 @@ export interface SessionDetail extends SessionSummary {
   attributes: AttributeSpec[]
   duplicates: number
   allowNoPreference: boolean
+  /** How the findings adjust each family of pairs; locked with the design. */
+  adjustment: PAdjustment
+  /** Smallest difference worth finding (rating points) that the interim look plans for. */
+  targetDifference: number | null
   /** What players see instead of the name and purpose, which stay with staff. */
   playerTitle: string
   playerMessage: string

@@ -1,15 +1,19 @@
 import { h } from 'vue'
 import type { DataTableColumns } from 'naive-ui'
 import type { AgingChange, MorePair, ObjectiveRow, PreferencePair } from '@shared/schemas/findings'
-import { interval, num, percent, pValue } from './format'
+import type { PAdjustment } from '@shared/schemas/sessions'
+import { adjustedTitle, interval, num, percent, pValue } from './format'
 
 /** What the pair tables need from the page: recipes appear by name, never by id alone. */
 export interface PairColumnHandlers {
   recipeName: (id: number) => string
+  /** The session's adjustment, named in the adjusted p's column. */
+  adjustment: PAdjustment
 }
 
 export function createPreferenceColumns({
   recipeName,
+  adjustment,
 }: PairColumnHandlers): DataTableColumns<PreferencePair> {
   return [
     {
@@ -29,13 +33,19 @@ export function createPreferenceColumns({
         `${percent(r.test.estimate)} (${r.test.ci ? `${percent(r.test.ci.lower)}–${percent(r.test.ci.upper)}` : '—'})`,
     },
     { title: 'Sign test p', key: 'p', width: 95, render: (r) => pValue(r.test.p) },
-    { title: 'Holm p', key: 'holmP', width: 80, render: (r) => h('strong', pValue(r.holmP)) },
+    {
+      title: adjustedTitle(adjustment),
+      key: 'adjustedP',
+      width: 80,
+      render: (r) => h('strong', pValue(r.adjustedP)),
+    },
     { title: 'In words', key: 'sentence', minWidth: 260 },
   ]
 }
 
 export function createMorePairColumns({
   recipeName,
+  adjustment,
 }: PairColumnHandlers): DataTableColumns<MorePair> {
   return [
     {
@@ -47,7 +57,12 @@ export function createMorePairColumns({
     { title: 'First has more', key: 'firstMore', width: 110 },
     { title: 'Second has more', key: 'secondMore', width: 120 },
     { title: 'Sign test p', key: 'p', width: 95, render: (r) => pValue(r.test.p) },
-    { title: 'Holm p', key: 'holmP', width: 80, render: (r) => pValue(r.holmP) },
+    {
+      title: adjustedTitle(adjustment),
+      key: 'adjustedP',
+      width: 80,
+      render: (r) => pValue(r.adjustedP),
+    },
     { title: 'In words', key: 'sentence', minWidth: 260 },
   ]
 }
@@ -63,7 +78,7 @@ export function createObjectiveColumns(): DataTableColumns<ObjectiveRow> {
   ]
 }
 
-export function createAgingColumns(): DataTableColumns<AgingChange> {
+export function createAgingColumns(adjustment: PAdjustment): DataTableColumns<AgingChange> {
   return [
     { title: 'Recipe', key: 'name', width: 200 },
     { title: 'From → to', key: 'span', width: 150, render: (r) => `${r.from} → ${r.to}` },
@@ -71,7 +86,20 @@ export function createAgingColumns(): DataTableColumns<AgingChange> {
     { title: 'Change', key: 'difference', width: 80, render: (r) => num(r.difference) },
     { title: '95% CI', key: 'ci', width: 120, render: (r) => interval(r.ci) },
     { title: 'p', key: 'p', width: 70, render: (r) => pValue(r.p) },
-    { title: 'Holm p', key: 'holmP', width: 80, render: (r) => pValue(r.holmP) },
+    { title: 'Wilcoxon p', key: 'wilcoxonP', width: 95, render: (r) => pValue(r.wilcoxonP) },
+    {
+      title: adjustedTitle(adjustment),
+      key: 'adjustedP',
+      width: 80,
+      render: (r) => pValue(r.adjustedP),
+    },
+    { title: 'dz', key: 'dz', width: 60, render: (r) => num(r.dz, 2) },
+    {
+      title: 'r (rank-biserial)',
+      key: 'rankBiserial',
+      width: 90,
+      render: (r) => num(r.rankBiserial, 2),
+    },
     { title: 'In words', key: 'sentence', minWidth: 260 },
   ]
 }

@@ -1,4 +1,5 @@
 import type { Interval } from '@shared/schemas/findings'
+import type { PAdjustment } from '@shared/schemas/sessions'
 
 export const num = (x: number | null | undefined, digits = 1) =>
   x === null || x === undefined || !Number.isFinite(x) ? '—' : x.toFixed(digits)
@@ -6,6 +7,9 @@ export const num = (x: number | null | undefined, digits = 1) =>
 /** p-values as analysts read them: three decimals, and "< 0.001" below that. */
 export const pValue = (p: number | null | undefined) =>
   p === null || p === undefined || !Number.isFinite(p) ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3)
+
+/** The adjusted p's column names its adjustment: the session's design chose it. */
+export const adjustedTitle = (adjustment: PAdjustment) => (adjustment === 'bh' ? 'BH p' : 'Holm p')
 
 export const interval = (ci: Interval | null | undefined, digits = 1) =>
   ci ? `${num(ci.lower, digits)} to ${num(ci.upper, digits)}` : '—'

@@ -66,7 +66,7 @@ describe('computeFindings on reference data', () => {
     expect(pair.ci?.lower).toBeCloseTo(0.7001142, 6)
     expect(pair.ci?.upper).toBeCloseTo(2.4598858, 6)
     // A family of one pair: Holm leaves p as it is.
-    expect(pair.holmP).toBe(pair.p)
+    expect(pair.adjustedP).toBe(pair.p)
   })
 
   it('writes the plain sentence with the higher recipe first', () => {
@@ -118,14 +118,14 @@ describe('computeFindings with three recipes', () => {
   it('Holm-adjusts the three pairs as one family', () => {
     expect(attribute.pairs.map((p) => `${p.first}-${p.second}`)).toEqual(['A-B', 'A-C', 'B-C'])
     const expected = holm(attribute.pairs.map((p) => p.p))
-    attribute.pairs.forEach((p, i) => expect(p.holmP).toBe(expected[i]))
+    attribute.pairs.forEach((p, i) => expect(p.adjustedP).toBe(expected[i]))
     const expectedW = holm(attribute.pairs.map((p) => p.wilcoxonP))
-    attribute.pairs.forEach((p, i) => expect(p.wilcoxonHolmP).toBe(expectedW[i]))
+    attribute.pairs.forEach((p, i) => expect(p.wilcoxonAdjustedP).toBe(expectedW[i]))
   })
 
   it('says when a difference is not clear', () => {
     const ab = attribute.pairs[0]
-    expect(ab.holmP).toBeGreaterThan(0.05)
+    expect(ab.adjustedP).toBeGreaterThan(0.05)
     expect(
       ab.sentence.startsWith('No clear difference between Recipe A and Recipe B on brightness'),
     ).toBe(true)
@@ -181,12 +181,12 @@ describe('computeFindings on bad input', () => {
       n: 0,
       dropped: 4,
       p: null,
-      holmP: null,
+      adjustedP: null,
       reason: 'no player rated both',
     })
     expect(ac?.sentence).toBe('No player has rated both Recipe A and Recipe C on brightness yet.')
     // Holm counts only the pair that could be tested.
-    expect(ab?.holmP).toBe(ab?.p)
+    expect(ab?.adjustedP).toBe(ab?.p)
     // Four recipes in the session, two of them rated: the design is not the cause.
     expect(a.omnibus.reason).toBe('fewer than three recipes rated')
     expect(a.omnibus.sentence).toBe(

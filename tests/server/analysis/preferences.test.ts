@@ -20,7 +20,7 @@ describe('preferenceFindings', () => {
     expect(pair).toMatchObject({ firstPreferred: 1, secondPreferred: 9, noPreference: 2 })
     // Computed: two-sided exact p for 1 of 10 is 2·11/1024; a family of one is not adjusted.
     expect(pair.test.p).toBeCloseTo(22 / 1024, 12)
-    expect(pair.holmP).toBeCloseTo(22 / 1024, 12)
+    expect(pair.adjustedP).toBeCloseTo(22 / 1024, 12)
     expect(pair.sentence).toBe(
       'B was preferred in 9 of 10 choices (90%, 95% CI 55% to 100%), Holm p = 0.021; 2 had no preference.',
     )
