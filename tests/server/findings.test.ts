@@ -1,7 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parse as parseCsv } from 'csv-parse/sync'
 import { fixedClock } from '../../server/clock'
-import { benjaminiHochberg, computeFindings, type Rating } from '../../server/analysis/index.ts'
+import {
+  benjaminiHochberg,
+  computeFindings,
+  pairedTSampleSize,
+  type Rating,
+} from '../../server/analysis/index.ts'
 import { type PlannedTrial } from '../../server/design/index.ts'
 import { buildPlayerPlan } from '../../server/formats/index.ts'
 import { seedDemoSessions } from '../../seeds/demo/sessions'
@@ -51,6 +56,7 @@ async function study(
     duplicates?: number
     violas?: number
     adjustment?: 'holm' | 'bh'
+    targetDifference?: number
   } = {},
 ): Promise<Study> {
   const { recipeIds, clipSets } = await studyFixture(t.knex, options.recipes ?? 3, 2, 'Finding')
@@ -61,6 +67,7 @@ async function study(
     clipSets,
     duplicates: options.duplicates ?? (format === 'rating' ? 2 : 0),
     ...(options.adjustment ? { adjustment: options.adjustment } : {}),
+    ...(options.targetDifference ? { targetDifference: options.targetDifference } : {}),
     deadline: isoDay(clock.now(), 14),
   })
   const violas = options.violas ?? 0
@@ -172,7 +179,11 @@ describe('findings of an attribute rating session', () => {
   })
 
   it('adjusts by Benjamini–Hochberg when the design chose it, names it, and locks the choice', async () => {
-    const bh = await study('rating', 8, leaning, { recipes: 4, adjustment: 'bh' })
+    const bh = await study('rating', 8, leaning, {
+      recipes: 4,
+      adjustment: 'bh',
+      targetDifference: 10,
+    })
     const f = await findingsOf(analyst, bh.id)
     expect(f.session.adjustment).toBe('bh')
     const holm = await findingsOf(analyst, s.id)
@@ -190,10 +201,25 @@ describe('findings of an attribute rating session', () => {
     const csv = await analyst.get(`/api/findings/${bh.id}/export/pairs.csv`)
     const rows = parseCsv(csv.text, { columns: true }) as Record<string, string>[]
     expect(rows.every((r) => r.adjustment === 'Benjamini-Hochberg')).toBe(true)
+    // The session is open: each attribute plans the players still needed for the design's
+    // difference, at α over its 6 pairs (pairedTSampleSize is checked against power.t.test).
+    expect(warmth.interim).toMatchObject({
+      complete: 8,
+      difference: 10,
+      differenceSource: 'design',
+    })
+    expect(warmth.interim!.alphaPerPair).toBeCloseTo(0.05 / 6, 15)
+    const plan = pairedTSampleSize({ difference: 10, sd: warmth.interim!.sd!, alpha: 0.05 / 6 })
+    expect(warmth.interim!.needed).toBe(plan.n)
+    expect(warmth.interim!.more).toBe(Math.max(0, plan.n! - 8))
+    const interimCsv = await analyst.get(`/api/findings/${bh.id}/export/interim.csv`)
+    expect(parseCsv(interimCsv.text, { columns: true })).toHaveLength(3)
     // Players have answered: the choice can no longer follow the results.
     const changed = await saveEdit(developer, `/api/sessions/${bh.id}`, { adjustment: 'holm' })
     expect(changed.status).toBe(409)
     expect(changed.body.error.fields).toHaveProperty('adjustment')
+    const target = await saveEdit(developer, `/api/sessions/${bh.id}`, { targetDifference: 5 })
+    expect(target.status).toBe(409)
   })
 
   it('lists every player for reliability, with the rule in words', async () => {

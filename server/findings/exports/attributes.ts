@@ -93,6 +93,47 @@ export const omnibus: ExportTable = {
     ]),
 }
 
+/** The interim look of a running session: empty once it has closed. */
+export const interim: ExportTable = {
+  header: [
+    'attribute',
+    'complete_players',
+    'difference',
+    'difference_from',
+    'sd_pooled',
+    'pairs',
+    'alpha_per_pair',
+    'target_power',
+    'power_now',
+    'players_needed',
+    'players_more',
+    'sentence',
+    'reason',
+  ],
+  rows: (f) =>
+    f.attributes.flatMap(({ name, interim: i }) =>
+      i
+        ? [
+            [
+              name,
+              i.complete,
+              i.difference,
+              i.differenceSource,
+              i.sd,
+              i.pairs,
+              i.alphaPerPair,
+              i.targetPower,
+              i.powerNow,
+              i.needed,
+              i.more,
+              i.sentence,
+              i.reason,
+            ],
+          ]
+        : [],
+    ),
+}
+
 export const objective: ExportTable = {
   header: ['measure', 'unit', 'attribute', 'n', 'rho', 'p', 'reason'],
   rows: (f) => f.objective.map((o) => [o.measure, o.unit, o.name, o.n, o.rho, o.p, o.reason]),

@@ -1,6 +1,6 @@
 import type { FindingsTable } from '../../../shared/schemas/findings'
 import type { ExportTable } from './csv'
-import { means, objective, omnibus, pairs } from './attributes'
+import { interim, means, objective, omnibus, pairs } from './attributes'
 import { preferences, scale } from './preferences'
 import { reliability, triangle } from './panel'
 import { aging } from './aging'
@@ -19,4 +19,5 @@ export const EXPORT_TABLES: Record<FindingsTable, ExportTable> = {
   reliability,
   objective,
   aging,
+  interim,
 }

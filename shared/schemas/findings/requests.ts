@@ -51,6 +51,7 @@ export const FINDINGS_TABLES = [
   'reliability',
   'objective',
   'aging',
+  'interim',
 ] as const
 export type FindingsTable = (typeof FINDINGS_TABLES)[number]
 
