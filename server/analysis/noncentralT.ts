@@ -1,5 +1,6 @@
 import betainc from '@stdlib/math-base-special-betainc'
 import erfc from '@stdlib/math-base-special-erfc'
+import gammainc from '@stdlib/math-base-special-gammainc'
 
 /*
  * The noncentral t distribution: T = (Z + δ) / √(V/ν), Z standard normal, V chi-squared(ν).
@@ -59,8 +60,20 @@ function reflectedLower(t: number, df: number, delta: number): number {
   )
 }
 
+/**
+ * A bound on P(T ≤ t) for t > 0, δ > 0: T ≤ t needs Z ≤ −δ/2 or t·√(V/ν) ≥ δ/2 (otherwise
+ * Z + δ > δ/2 > t·√(V/ν)), so P(T ≤ t) ≤ Φ(−δ/2) + P(V ≥ ν·(δ/2t)²).
+ */
+function lowerTailBound(t: number, df: number, delta: number): number {
+  const v = df * (delta / (2 * t)) ** 2
+  return normalBelowMinus(delta / 2) + gammainc(v / 2, df / 2, true, true)
+}
+
 function reflectedUpper(t: number, df: number, delta: number): number {
   if (t === 0) return normalBelowMinus(-delta)
+  // A power so close to 1 that 1 − power is below the last bit of a double is 1; the series
+  // would need millions of terms to say so when √n·d/s runs into the hundreds.
+  if (delta > 0 && lowerTailBound(t, df, delta) < 1e-17) return 1
   // y computed directly, not as 1 − x, keeps its digits when t is large.
   const y = df / (t * t + df)
   const b = df / 2

@@ -54,3 +54,14 @@ describe('paired-t power and players against R power.t.test(type = "paired")', (
     expect(pairedTSampleSize({ difference: 30, sd: 15, alpha: 0.01, power: 0.9 }).n).toBe(8)
   })
 })
+
+describe('powers that round to 1', () => {
+  it('answers at once, as R does, where the series would need millions of terms', () => {
+    // R 4.2.2: pt(2, 30, 20, lower.tail = FALSE) = 1 and
+    // power.t.test(n = 1000, delta = 10, sd = 12, sig.level = 0.05/45, type = "paired")$power = 1.
+    expect(noncentralTCdf(2, 30, 20, false)).toBe(1)
+    expect(pairedTPower(1000, 10 / 12, 0.05 / 45)).toBe(1)
+    // Just short of 1 the series still runs: pt(qt(0.9995, 99), 99, 8, lower.tail = FALSE).
+    expect(relative(pairedTPower(100, 0.8, 0.001), 0.99999636941020664)).toBeLessThan(1e-9)
+  })
+})
