@@ -139,8 +139,18 @@ describe('a player on a phone', () => {
         const card = page.locator(`[data-test=rate-${t.clips[0].code}]`)
         const values: Record<string, number> = {}
         for (const [a, key] of keys.entries()) {
+          const input = card.locator(`input[data-attribute=${key}]`)
+          if (n === 1 && t === shownTrials[0] && a === 0) {
+            // A fresh scale's thumb sits at the middle: a tap right there must still record.
+            const box = (await input.boundingBox())!
+            await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2)
+            await card.locator(`.scale:not(.unset) input[data-attribute=${key}]`).waitFor()
+            values[key] = Number(await input.inputValue())
+            expect(Math.abs(values[key] - 50)).toBeLessThanOrEqual(2)
+            continue
+          }
           values[key] = valueFor(t.index, a)
-          await card.locator(`input[data-attribute=${key}]`).fill(String(values[key]))
+          await input.fill(String(values[key]))
         }
         expected.set(t.index, values)
       }
