@@ -45,6 +45,13 @@ export {
   type PairChoice,
 } from './bradleyTerry.ts'
 export {
+  dPrimeSentence,
+  triangleDPrime,
+  triangleDPrimeFromPc,
+  trianglePc,
+  type TriangleDPrime,
+} from './dPrime.ts'
+export {
   proportionDiscriminators,
   TRIANGLE_GUESS_RATE,
   triangleMinimumCorrect,

@@ -1,5 +1,5 @@
 /* Findings of triangle answers: the test on first answers only, and the verdict in words. */
-import { formatP, triangleTest } from '../analysis/index.ts'
+import { formatP, triangleDPrime, triangleTest } from '../analysis/index.ts'
 import type { TriangleFindings } from '../../shared/schemas/findings'
 import type { ResolvedAnswers } from './answersToRatings'
 import { percent } from './wording'
@@ -8,8 +8,12 @@ export function triangleFindings(answers: ResolvedAnswers): TriangleFindings {
   const first = answers.triangles.filter((t) => !t.repeat)
   const correct = first.filter((t) => t.correct).length
   const result = triangleTest(correct, first.length)
+  const d = triangleDPrime(correct, first.length)
   return {
     ...result,
+    dPrime: d.dPrime,
+    dPrimeCi: d.ci,
+    dPrimeSentence: d.reason === 'no answers' ? '' : d.sentence,
     repeatsSetAside: answers.triangles.length - first.length,
     verdict: triangleVerdict(result),
   }

@@ -524,6 +524,11 @@ describe('findings of pair and triangle sessions', () => {
     expect(tri.p!).toBeLessThan(0.001)
     expect(tri.verdict).toMatch(/can hear a difference/)
     expect(Number(csv[0].correct)).toBe(10)
+    // d′ for 10 of 12 through the triangle's psychometric function: R's uniroot() on the
+    // integral gives 3.38140774998 (fixtures/triangleDPrime.R computes it the same way).
+    expect(tri.dPrime!).toBeCloseTo(3.38140774998, 8)
+    expect(Number(csv[0].d_prime)).toBeCloseTo(3.38140774998, 8)
+    expect(tri.dPrimeSentence).toMatch(/^d′ = 3\.\d\d \(95% CI/)
     expectNoNaN(f)
   })
 })

@@ -10,6 +10,11 @@ export interface TriangleFindings {
   minimumCorrect01: number | null
   pd: number | null
   pdCi: Interval | null
+  /** Thurstonian d′ from the share correct (0 at guessing; null when every answer was right). */
+  dPrime: number | null
+  /** Through the exact interval of the share; the upper end is null when it has no bound. */
+  dPrimeCi: { lower: number; upper: number | null } | null
+  dPrimeSentence: string
   /** Answers to hidden repeats, set aside: a repeat is not a new, independent judgement. */
   repeatsSetAside: number
   verdict: string
