@@ -1,5 +1,6 @@
 import type { Adjustment } from './adjust.ts'
 import { aggregateDense } from './aggregate.ts'
+import { compactLetters } from './compactLetters.ts'
 import { summarizeMean } from './describe.ts'
 import { interimLook, type InterimLook } from './interim.ts'
 import { omnibus, type OmnibusLine } from './omnibus.ts'
@@ -44,6 +45,11 @@ export interface RecipeMean {
   mean: number | null
   sd: number | null
   ci: Interval | null
+  /**
+   * Compact letters: recipes sharing a letter are not found different by the paired t at the
+   * session's α after its adjustment. Null for a recipe without a mean.
+   */
+  letters: string | null
   reason: Reason
 }
 
@@ -130,10 +136,11 @@ function attributeFindings(
   const recipeMeans: RecipeMean[] = recipes.map((recipe, c) => {
     const values: number[] = []
     for (const row of active) if (!Number.isNaN(row[c])) values.push(row[c])
-    return { recipe, name: recipeName(recipe), ...summarizeMean(values) }
+    return { recipe, name: recipeName(recipe), ...summarizeMean(values), letters: null }
   })
 
   const pairs = recipePairs(active, recipes, recipeName, wording)
+  addLetters(recipeMeans, pairs, wording.alpha)
   const overall = omnibus(active, recipes, recipeMeans, wording.name)
   return {
     attribute,
@@ -149,4 +156,20 @@ function attributeFindings(
         })
       : null,
   }
+}
+
+/** Letters over the recipes with a mean, highest mean first, so the top recipe carries "a". */
+function addLetters(means: RecipeMean[], pairs: readonly PairRow[], alpha: number): void {
+  const rated = means.filter((m) => m.mean !== null)
+  rated.sort((x, y) => (y.mean as number) - (x.mean as number))
+  const letters = compactLetters(
+    rated.map((m) => m.recipe),
+    pairs.map((p) => ({
+      a: p.first,
+      b: p.second,
+      // A pair that could not be tested is not shown to differ.
+      different: p.adjustedP !== null && p.adjustedP < alpha,
+    })),
+  )
+  for (const m of rated) m.letters = letters.get(m.recipe) ?? null
 }

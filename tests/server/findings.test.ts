@@ -171,6 +171,8 @@ describe('findings of an attribute rating session', () => {
     const brightness = f.attributes.find((a) => a.attribute === 'brightness')!
     expect(brightness.pairs.every((p) => p.difference! < 0 && p.adjustedP! < 0.05)).toBe(true)
     expect(brightness.pairs[0].sentence).toMatch(/brighter than/)
+    // Every pair differs: no two recipes share a letter, and the brightest carries "a".
+    expect(brightness.recipes.map((r) => r.letters)).toEqual(['a', 'b', 'c'])
     // A constant attribute is answered with a reason, not a number out of thin air.
     const bow = f.attributes.find((a) => a.attribute === 'bow_response')!
     expect(bow.pairs.every((p) => p.reason === 'no variance' && p.p === null)).toBe(true)

@@ -4,10 +4,20 @@ import { adjustmentOf, hi, lo, type ExportTable } from './csv'
 // attribute, and the clip measures against what players perceived.
 
 export const means: ExportTable = {
-  header: ['attribute', 'recipe', 'n', 'mean', 'sd', 'ci_lower', 'ci_upper', 'reason'],
+  header: ['attribute', 'recipe', 'n', 'mean', 'sd', 'ci_lower', 'ci_upper', 'letters', 'reason'],
   rows: (f) =>
     f.attributes.flatMap((a) =>
-      a.recipes.map((r) => [a.name, r.name, r.n, r.mean, r.sd, lo(r.ci), hi(r.ci), r.reason]),
+      a.recipes.map((r) => [
+        a.name,
+        r.name,
+        r.n,
+        r.mean,
+        r.sd,
+        lo(r.ci),
+        hi(r.ci),
+        r.letters,
+        r.reason,
+      ]),
     ),
 }
 

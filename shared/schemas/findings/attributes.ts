@@ -5,6 +5,8 @@ import type { FindingsReason, Interval } from './common'
 // player's screen.
 
 export interface RecipeMean {
+  /** Recipes sharing a letter are not found different (paired t, the session's adjustment). */
+  letters: string | null
   recipe: number
   name: string
   n: number
