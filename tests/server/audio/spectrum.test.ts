@@ -19,6 +19,30 @@ describe('spectral centroid', () => {
     expect(spectralCentroid(mix, RATE)).toBeCloseTo(1500, -1)
   })
 
+  it('weights by power: tones of amplitude 1 and 0.5 give (500 + 0.25·2500)/1.25 = 900 Hz', () => {
+    // Computed from the definition in the README; magnitude weighting would give 1,167 Hz.
+    const mix = synth.sine({ frequency: 500, seconds: 2, peakDbfs: -6 })
+    const high = synth.sine({ frequency: 2500, seconds: 2, peakDbfs: -12.0206 })
+    for (let i = 0; i < mix.length; i++) mix[i] += high[i]
+    expect(Math.abs(spectralCentroid(mix, RATE)! - 900)).toBeLessThan(5)
+  })
+
+  it('moves by under 5% when −60 dBFS white noise is added to a pluck or a bowed note', () => {
+    const notes = [
+      synth.pluckedNote({ f0: 196, t60: 3, seconds: 4, delaySeconds: 0.2 }),
+      synth.pluckedNote({ f0: 98, t60: 6, seconds: 4 }),
+      synth.pluckedNote({ f0: 659.26, t60: 0.8, seconds: 3, delaySeconds: 0.5 }),
+      synth.bowedTone({ f0: 196, seconds: 3, attackSeconds: 0.1 }),
+    ]
+    for (const clean of notes) {
+      const noisy = clean.slice()
+      const noise = synth.whiteNoise({ seconds: clean.length / RATE, rmsDbfs: -60, seed: 5 })
+      for (let i = 0; i < noisy.length; i++) noisy[i] += noise[i]
+      const before = spectralCentroid(clean, RATE)!
+      expect(Math.abs(spectralCentroid(noisy, RATE)! / before - 1)).toBeLessThan(0.05)
+    }
+  })
+
   it('ignores the silent parts of a clip', () => {
     const tone = synth.sine({ frequency: 800, seconds: 1, peakDbfs: -12 })
     // 50 ms fades, so the edges add no clicks of their own.
