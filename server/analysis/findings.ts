@@ -1,6 +1,7 @@
 import type { Adjustment } from './adjust.ts'
 import { aggregateDense } from './aggregate.ts'
 import { compactLetters } from './compactLetters.ts'
+import { attributeHeadline } from './headline.ts'
 import { summarizeMean } from './describe.ts'
 import { interimLook, type InterimLook } from './interim.ts'
 import { omnibus, type OmnibusLine } from './omnibus.ts'
@@ -58,6 +59,8 @@ export interface AttributeFindings {
   name: string
   /** Players with at least one rating on this attribute. */
   players: number
+  /** The answer first: which recipes came out on top and whether the panel tells them apart. */
+  headline: string
   recipes: RecipeMean[]
   pairs: PairRow[]
   omnibus: OmnibusLine
@@ -146,6 +149,7 @@ function attributeFindings(
     attribute,
     name: wording.name,
     players: active.length,
+    headline: attributeHeadline(wording.name, recipeMeans),
     recipes: recipeMeans,
     pairs,
     omnibus: overall,

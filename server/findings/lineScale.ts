@@ -42,6 +42,7 @@ function toShared(a: EngineAttribute, spec: AttributeSpec | undefined): Attribut
     low: spec?.low ?? '',
     high: spec?.high ?? '',
     players: a.players,
+    headline: a.headline,
     recipes: a.recipes.map((r) => ({ ...r, recipe: Number(r.recipe) })),
     pairs: a.pairs.map((p) => ({ ...p, first: Number(p.first), second: Number(p.second) })),
     omnibus: { ...a.omnibus, recipes: a.omnibus.recipes.map(Number) },

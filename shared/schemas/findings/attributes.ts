@@ -62,6 +62,8 @@ export interface AttributeFindings {
   low: string
   high: string
   players: number
+  /** The answer first: which recipes came out on top and whether the panel tells them apart. */
+  headline: string
   recipes: RecipeMean[]
   pairs: PairRow[]
   omnibus: OmnibusLine
