@@ -76,6 +76,10 @@ export {
   SPEARMAN_EXACT_LIMIT,
   type CorrelationResult,
 } from './correlation.ts'
+export { pearsonTest, type PearsonTestResult } from './pearsonTest.ts'
+export { SPEARMAN_SERIES_LIMIT, spearmanLower, spearmanP, spearmanUpper } from './spearmanP.ts'
+export { attributeHeadline } from './headline.ts'
+export { compactLetters, type PairVerdict } from './compactLetters.ts'
 export {
   correlateMeasures,
   objectiveVsPerceived,

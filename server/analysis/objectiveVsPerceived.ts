@@ -1,5 +1,6 @@
 import { spearman } from './correlation.ts'
-import type { Id, Rating, Reason } from './types.ts'
+import { pearsonTest } from './pearsonTest.ts'
+import type { Id, Interval, Rating, Reason } from './types.ts'
 
 /** One measured figure of one clip (e.g. spectral centroid, decay time, attack time). */
 export interface ClipMeasure {
@@ -16,6 +17,10 @@ export interface MeasureCorrelation {
   n: number
   rho: number | null
   p: number | null
+  /** Pearson's r beside the rank correlation: a straight-line fit, with its Fisher-z interval. */
+  pearsonR: number | null
+  pearsonP: number | null
+  pearsonCi: Interval | null
   reason: Reason
 }
 
@@ -134,12 +139,16 @@ export function correlateMeasures(
         }
       }
       const result = spearman(x, y)
+      const linear = pearsonTest(x, y)
       out.push({
         measure,
         attribute,
         n: result.n,
         rho: result.r,
         p: result.p,
+        pearsonR: linear.r,
+        pearsonP: linear.p,
+        pearsonCi: linear.ci,
         reason: result.reason,
       })
     }

@@ -35,6 +35,8 @@ export type Reason =
   | 'more than 100,000 players needed'
   // Reliability.
   | 'too few hidden duplicates'
+  // Correlations.
+  | 'fewer than three pairs'
   // Anywhere.
   | 'not enough data'
   | 'no variance'

@@ -58,8 +58,11 @@ export function objectiveFindings(
         name: names.get(a.key) ?? a.key,
         rho: found?.rho ?? null,
         p: found?.p ?? null,
+        pearsonR: found?.pearsonR ?? null,
+        pearsonP: found?.pearsonP ?? null,
+        pearsonCi: found?.pearsonCi ?? null,
         n: found?.n ?? points.length,
-        reason: found ? found.reason : 'not enough data',
+        reason: found ? found.reason : 'fewer than three pairs',
         points,
       })
     }

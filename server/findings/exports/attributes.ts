@@ -145,6 +145,31 @@ export const interim: ExportTable = {
 }
 
 export const objective: ExportTable = {
-  header: ['measure', 'unit', 'attribute', 'n', 'rho', 'p', 'reason'],
-  rows: (f) => f.objective.map((o) => [o.measure, o.unit, o.name, o.n, o.rho, o.p, o.reason]),
+  header: [
+    'measure',
+    'unit',
+    'attribute',
+    'n',
+    'rho',
+    'p',
+    'pearson_r',
+    'pearson_p',
+    'pearson_ci_lower',
+    'pearson_ci_upper',
+    'reason',
+  ],
+  rows: (f) =>
+    f.objective.map((o) => [
+      o.measure,
+      o.unit,
+      o.name,
+      o.n,
+      o.rho,
+      o.p,
+      o.pearsonR,
+      o.pearsonP,
+      lo(o.pearsonCi),
+      hi(o.pearsonCi),
+      o.reason,
+    ]),
 }

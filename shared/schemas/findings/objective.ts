@@ -1,5 +1,5 @@
 import type { CorrelatedMeasureName } from '../../measures'
-import type { FindingsReason } from './common'
+import type { FindingsReason, Interval } from './common'
 
 // Clip measures against what the panel perceived.
 
@@ -13,6 +13,10 @@ export interface ObjectiveRow {
   name: string
   rho: number | null
   p: number | null
+  /** Pearson's r with its p and Fisher-z 95% interval (null below four clips). */
+  pearsonR: number | null
+  pearsonP: number | null
+  pearsonCi: Interval | null
   n: number
   reason: FindingsReason
   /** One point per clip: the measure against the panel's mean rating of that clip. */

@@ -74,6 +74,16 @@ export function createObjectiveColumns(): DataTableColumns<ObjectiveRow> {
     { title: 'Clips', key: 'n', width: 70 },
     { title: 'Spearman ρ', key: 'rho', width: 110, render: (r) => num(r.rho, 2) },
     { title: 'p', key: 'p', width: 80, render: (r) => pValue(r.p) },
+    {
+      title: 'Pearson r (95% CI)',
+      key: 'pearsonR',
+      width: 170,
+      render: (r) =>
+        r.pearsonR === null
+          ? '—'
+          : `${num(r.pearsonR, 2)}${r.pearsonCi ? ` (${interval(r.pearsonCi, 2)})` : ''}`,
+    },
+    { title: 'p', key: 'pearsonP', width: 80, render: (r) => pValue(r.pearsonP) },
     { title: '', key: 'reason', minWidth: 160, render: (r) => r.reason ?? '' },
   ]
 }

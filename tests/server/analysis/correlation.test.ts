@@ -8,6 +8,49 @@ import {
   type Rating,
 } from '../../../server/analysis/index.ts'
 import { seeded } from './random.ts'
+import { pearsonTest } from '../../../server/analysis/pearsonTest.ts'
+import fixture from './fixtures/correlations.json'
+
+const relative = (ours: number | null, theirs: number) =>
+  theirs === 0 ? Math.abs(ours ?? NaN) : Math.abs((ours ?? NaN) / theirs - 1)
+
+// R 4.2.2's cor.test, made by fixtures/correlations.R beside the JSON.
+describe('correlations against R', () => {
+  it("gives Spearman's p as cor.test(method = 'spearman'): every ordering, AS 89, t", () => {
+    let worst = 0
+    for (const c of fixture.spearman) {
+      const result = spearman(c.x, c.y)
+      expect(Math.abs((result.r as number) - c.rho)).toBeLessThan(1e-12)
+      worst = Math.max(worst, relative(result.p, c.p))
+      const n = c.x.length
+      const expected = c.ties || n > 1290 ? 't' : n <= 9 ? 'exact' : 'series'
+      expect(result.method, `n = ${n}`).toBe(expected)
+    }
+    expect(worst).toBeLessThan(1e-9)
+  })
+
+  it("gives Pearson's r, t, p and Fisher-z interval as cor.test(x, y)", () => {
+    for (const c of fixture.pearson) {
+      const result = pearsonTest(c.x, c.y)
+      expect(relative(result.r, c.r)).toBeLessThan(1e-12)
+      expect(relative(result.t, c.t)).toBeLessThan(1e-10)
+      expect(result.df).toBe(c.df)
+      expect(relative(result.p, c.p)).toBeLessThan(1e-9)
+      if (c.lower === null) expect(result.ci).toBeNull()
+      else {
+        expect(Math.abs(result.ci!.lower - (c.lower as number))).toBeLessThan(1e-12)
+        expect(Math.abs(result.ci!.upper - (c.upper as number))).toBeLessThan(1e-12)
+      }
+    }
+  })
+
+  it('refuses unequal lengths and non-finite values with a clear error', () => {
+    expect(() => spearman([1, 2, 3], [1, 2])).toThrow(/same length \(3 and 2\)/)
+    expect(() => pearson([1, NaN, 3], [1, 2, 3])).toThrow(/finite/)
+    expect(() => pearsonTest([1, 2, 3, 4], [1, 2, 3, Infinity])).toThrow(/finite/)
+    expect(pearsonTest([1, 2], [2, 1])).toMatchObject({ r: null, reason: 'fewer than three pairs' })
+  })
+})
 
 describe('spearman', () => {
   it('reproduces the exact small-sample example of R cor.test', () => {
@@ -47,7 +90,11 @@ describe('spearman', () => {
   })
 
   it('returns reasons for too few or constant values', () => {
-    expect(spearman([1, 2], [3, 4])).toMatchObject({ r: null, p: null, reason: 'not enough data' })
+    expect(spearman([1, 2], [3, 4])).toMatchObject({
+      r: null,
+      p: null,
+      reason: 'fewer than three pairs',
+    })
     expect(spearman([1, 2, 3], [5, 5, 5])).toMatchObject({ r: null, reason: 'no variance' })
     expect(pearson([1, 1, 1], [1, 2, 3])).toBeNull()
   })
@@ -97,7 +144,7 @@ describe('objectiveVsPerceived', () => {
 
   it('returns a reason rather than NaN when there is nothing to correlate', () => {
     const rows = objectiveVsPerceived(measures.slice(0, 2), ratings)
-    expect(rows.every((r) => r.rho === null && r.reason === 'not enough data')).toBe(true)
+    expect(rows.every((r) => r.rho === null && r.reason === 'fewer than three pairs')).toBe(true)
     expect(objectiveVsPerceived([], [])).toEqual([])
   })
 })
