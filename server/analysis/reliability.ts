@@ -71,56 +71,98 @@ export function reliability(
     maxMissShare = MAX_MISS_SHARE,
     minPairs = MIN_DUPLICATE_PAIRS,
   } = options
-  // Nested maps rather than joined keys: on a large panel, building a key string per rating
-  // cost more than the statistics. Ids are compared as text, as everywhere in the engine.
-  // Repeats of one item per player (recipe → item → attribute), in the order answered.
-  const repeats = new Map<Id, Map<string, Map<string, Map<string, number[]>>>>()
-  // Cell means per player (recipe × attribute) and panel totals for the leave-one-out.
-  const cells = new Map<Id, Map<string, Map<string, Cell>>>()
+  // Whole-number indices for players, recipes, attributes and items, and flat arrays over
+  // them: on a large panel, maps of maps and a key string per rating cost more than the
+  // statistics. Ids are compared as text, as everywhere in the engine.
+  const playerIndex = new Map<Id, number>()
+  const playerIds: Id[] = []
+  const recipeIndex = new Map<string, number>()
+  const attributeIndex = new Map<string, number>()
+  const attributeIds: Id[] = []
+  const itemIndex = new Map<string, number>()
+  const indexOf = (m: Map<string, number>, key: string) => {
+    let i = m.get(key)
+    if (i === undefined) m.set(key, (i = m.size))
+    return i
+  }
+  // One entry per usable rating, in typed arrays: no object per rating for the collector.
+  const n = ratings.length
+  const ps = new Int32Array(n)
+  const rs = new Int32Array(n)
+  const as = new Int32Array(n)
+  const is = new Int32Array(n)
+  const values = new Float64Array(n)
+  let kept = 0
   for (const r of ratings) {
     if (typeof r.value !== 'number' || !Number.isFinite(r.value)) continue
-    const recipe = String(r.recipe)
+    let p = playerIndex.get(r.player)
+    if (p === undefined) {
+      playerIndex.set(r.player, (p = playerIds.length))
+      playerIds.push(r.player)
+    }
     const attribute = String(r.attribute)
-    const byItem = child(child(repeats, r.player), recipe)
-    child(byItem, String(r.item ?? r.clip ?? ''), attribute, () => []).push(r.value)
-    const cell = child(child(cells, r.player), recipe, attribute, () => ({
-      attribute: r.attribute,
-      sum: 0,
-      count: 0,
-    }))
-    cell.sum += r.value
-    cell.count++
+    let a = attributeIndex.get(attribute)
+    if (a === undefined) {
+      attributeIndex.set(attribute, (a = attributeIds.length))
+      attributeIds.push(r.attribute)
+    }
+    ps[kept] = p
+    rs[kept] = indexOf(recipeIndex, String(r.recipe))
+    as[kept] = a
+    is[kept] = indexOf(itemIndex, String(r.item ?? r.clip ?? ''))
+    values[kept] = r.value
+    kept++
   }
-  const panel = new Map<string, Map<string, { sum: number; count: number }>>()
-  for (const playerCells of cells.values())
-    for (const [recipe, byAttribute] of playerCells)
-      for (const [attribute, cell] of byAttribute) {
-        const total = child(panel, recipe, attribute, () => ({ sum: 0, count: 0 }))
-        total.sum += cell.sum / cell.count
-        total.count++
-      }
+  const P = playerIds.length
+  const R = recipeIndex.size
+  const A = attributeIds.length
+  const I = itemIndex.size
+  // Cell sums per player × recipe × attribute, and the panel's sum of cell means per cell.
+  const cellSum = new Float64Array(P * R * A)
+  const cellCount = new Uint32Array(P * R * A)
+  // Repeats of one item (player × item × recipe × attribute): each rating links back to the
+  // previous rating of the same item, so every pair is found without a list per item.
+  const last = new Map<number, number>()
+  const previous = new Int32Array(kept).fill(-1)
+  const pairsByPlayer = new Map<number, [number, number][]>()
+  for (let k = 0; k < kept; k++) {
+    const cell = (ps[k] * R + rs[k]) * A + as[k]
+    cellSum[cell] += values[k]
+    cellCount[cell]++
+    const key = ((ps[k] * I + is[k]) * R + rs[k]) * A + as[k]
+    const before = last.get(key)
+    last.set(key, k)
+    if (before === undefined) continue
+    previous[k] = before
+    let list = pairsByPlayer.get(ps[k])
+    if (!list) pairsByPlayer.set(ps[k], (list = []))
+    // Every pair of repeats, earlier first: with the usual two repeats, one pair per item.
+    const earlier: number[] = []
+    for (let j = before; j !== -1; j = previous[j]) earlier.push(j)
+    for (let e = earlier.length - 1; e >= 0; e--) list.push([values[earlier[e]], values[k]])
+  }
+  const panelSum = new Float64Array(R * A)
+  const panelCount = new Uint32Array(R * A)
+  for (let p = 0; p < P; p++)
+    for (let c = 0; c < R * A; c++) {
+      const cell = p * R * A + c
+      if (cellCount[cell] === 0) continue
+      panelSum[c] += cellSum[cell] / cellCount[cell]
+      panelCount[c]++
+    }
 
-  const pairsByPlayer = new Map<Id, [number, number][]>()
-  for (const [player, byRecipe] of repeats) {
-    const list: [number, number][] = []
-    for (const byItem of byRecipe.values())
-      for (const byAttribute of byItem.values())
-        for (const values of byAttribute.values())
-          // Every pair of repeats: with the usual two repeats that is one pair per item.
-          for (let i = 0; i < values.length; i++)
-            for (let j = i + 1; j < values.length; j++) list.push([values[i], values[j]])
-    if (list.length > 0) pairsByPlayer.set(player, list)
-  }
+  const dims = { R, A, attributeIds }
 
   const players: PlayerReliability[] = []
-  for (const [player, playerCells] of cells) {
-    const pairs = pairsByPlayer.get(player) ?? []
+  for (let index = 0; index < P; index++) {
+    const player = playerIds[index]
+    const pairs = pairsByPlayer.get(index) ?? []
     const misses = pairs.filter(([a, b]) => Math.abs(a - b) > tolerance).length
     const enough = pairs.length >= minPairs
     const missShare = pairs.length > 0 ? misses / pairs.length : null
     const mad =
       pairs.length > 0 ? pairs.reduce((s, [a, b]) => s + Math.abs(a - b), 0) / pairs.length : null
-    const agreement = leaveOneOut(playerCells, panel)
+    const agreement = leaveOneOut(index, cellSum, cellCount, panelSum, panelCount, dims)
     players.push({
       player,
       duplicatePairs: pairs.length,
@@ -143,57 +185,36 @@ export function reliability(
   return { rule: reliabilityRule(tolerance, maxMissShare, minPairs), players }
 }
 
-interface Cell {
-  attribute: Id
-  sum: number
-  count: number
-}
-
-/** The map under `key` in `m`, made empty (or by `make` at the last level) when missing. */
-function child<K, V>(m: Map<K, Map<string, V>>, key: K): Map<string, V>
-function child<V>(m: Map<string, Map<string, V>>, key: string, last: string, make: () => V): V
-function child(
-  m: Map<unknown, Map<string, unknown>>,
-  key: unknown,
-  last?: string,
-  make?: () => unknown,
-): unknown {
-  let inner = m.get(key)
-  if (!inner) m.set(key, (inner = new Map()))
-  if (last === undefined) return inner
-  let value = inner.get(last)
-  if (value === undefined) inner.set(last, (value = make!()))
-  return value
-}
-
 function leaveOneOut(
-  playerCells: Map<string, Map<string, Cell>>,
-  panel: Map<string, Map<string, { sum: number; count: number }>>,
+  player: number,
+  cellSum: Float64Array,
+  cellCount: Uint32Array,
+  panelSum: Float64Array,
+  panelCount: Uint32Array,
+  { R, A }: { R: number; A: number; attributeIds: Id[] },
 ): { rho: number | null; cells: number } {
-  // Group by attribute so each side can be centred: attributes sit at different heights on
-  // the scale, and that offset alone would make any player look in tune with the panel.
-  const byAttribute = new Map<Id, { own: number[]; rest: number[] }>()
-  for (const [recipe, cellsOfRecipe] of playerCells)
-    for (const [attributeKey, cell] of cellsOfRecipe) {
-      const total = panel.get(recipe)?.get(attributeKey)
-      if (!total || total.count < 2) continue
-      const own = cell.sum / cell.count
-      const rest = (total.sum - own) / (total.count - 1)
-      const group = byAttribute.get(cell.attribute) ?? { own: [], rest: [] }
-      group.own.push(own)
-      group.rest.push(rest)
-      byAttribute.set(cell.attribute, group)
-    }
+  // Centred within each attribute: attributes sit at different heights on the scale, and that
+  // offset alone would make any player look in tune with the panel.
   const own: number[] = []
   const rest: number[] = []
-  for (const group of byAttribute.values()) {
-    if (group.own.length < 2) continue
-    const mo = group.own.reduce((a, b) => a + b, 0) / group.own.length
-    const mr = group.rest.reduce((a, b) => a + b, 0) / group.rest.length
-    group.own.forEach((v, i) => {
-      own.push(v - mo)
-      rest.push(group.rest[i] - mr)
-    })
+  for (let a = 0; a < A; a++) {
+    const groupOwn: number[] = []
+    const groupRest: number[] = []
+    for (let r = 0; r < R; r++) {
+      const c = r * A + a
+      const cell = player * R * A + c
+      if (cellCount[cell] === 0 || panelCount[c] < 2) continue
+      const mine = cellSum[cell] / cellCount[cell]
+      groupOwn.push(mine)
+      groupRest.push((panelSum[c] - mine) / (panelCount[c] - 1))
+    }
+    if (groupOwn.length < 2) continue
+    const mo = groupOwn.reduce((x, y) => x + y, 0) / groupOwn.length
+    const mr = groupRest.reduce((x, y) => x + y, 0) / groupRest.length
+    for (let i = 0; i < groupOwn.length; i++) {
+      own.push(groupOwn[i] - mo)
+      rest.push(groupRest[i] - mr)
+    }
   }
   return { rho: own.length >= 3 ? spearmanRho(own, rest) : null, cells: own.length }
 }
