@@ -4,6 +4,7 @@ import { compactLetters } from './compactLetters.ts'
 import { attributeHeadline } from './headline.ts'
 import { summarizeMean } from './describe.ts'
 import { interimLook, type InterimLook } from './interim.ts'
+import { mixedModel, type MixedModelRating, type MixedModelResult } from './linearMixed.ts'
 import { omnibus, type OmnibusLine } from './omnibus.ts'
 import { recipePairs, type PairRow, type Wording } from './recipePairs.ts'
 import type { Id, Interval, Rating, Reason } from './types.ts'
@@ -66,6 +67,8 @@ export interface AttributeFindings {
   omnibus: OmnibusLine
   /** Players still needed for the difference worth finding; null unless asked for. */
   interim: InterimLook | null
+  /** Every rating, players as a random effect: the analysis that keeps incomplete players. */
+  mixed: MixedModelResult
 }
 
 export interface Findings {
@@ -95,9 +98,19 @@ export function computeFindings(input: FindingsInput): Findings {
   const alpha = input.alpha ?? 0.05
   const adjustment = input.adjustment ?? 'holm'
 
+  // The mixed model reads the ratings themselves (repeats and all), attribute by attribute.
+  const byAttribute = new Map<string, MixedModelRating[]>()
+  for (const r of ratings) {
+    if (!Number.isFinite(r.value)) continue
+    const key = String(r.attribute)
+    let list = byAttribute.get(key)
+    if (!list) byAttribute.set(key, (list = []))
+    list.push(r)
+  }
   const attributes = data.attributes.map((attribute, a) => {
     const info = attributeInfo.get(attribute)
-    return attributeFindings(attribute, data.dense[a], data.recipes, recipeName, {
+    const mixed = mixedModel(byAttribute.get(String(attribute)) ?? [], data.recipes)
+    return attributeFindings(attribute, data.dense[a], data.recipes, recipeName, mixed, {
       name: info?.name ?? String(attribute),
       higher: info?.higher,
       alpha,
@@ -126,6 +139,7 @@ function attributeFindings(
   dense: Float64Array,
   recipes: Id[],
   recipeName: (id: Id) => string,
+  mixed: MixedModelResult,
   wording: Wording,
 ): AttributeFindings {
   const k = recipes.length
@@ -159,6 +173,7 @@ function attributeFindings(
           alpha: wording.alpha,
         })
       : null,
+    mixed,
   }
 }
 

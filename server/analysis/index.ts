@@ -102,6 +102,13 @@ export {
   type TrianglePlanInput,
 } from './planning.ts'
 export { formatInterval, formatNumber, formatP } from './format.ts'
+export {
+  mixedModel,
+  type MixedContrast,
+  type MixedMean,
+  type MixedModelRating,
+  type MixedModelResult,
+} from './linearMixed.ts'
 export { interimLook, type InterimLook, type InterimOptions } from './interim.ts'
 export { omnibusSentence, pairSentence, type PairWording } from './sentences.ts'
 export {

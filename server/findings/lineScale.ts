@@ -47,5 +47,14 @@ function toShared(a: EngineAttribute, spec: AttributeSpec | undefined): Attribut
     pairs: a.pairs.map((p) => ({ ...p, first: Number(p.first), second: Number(p.second) })),
     omnibus: { ...a.omnibus, recipes: a.omnibus.recipes.map(Number) },
     interim: a.interim,
+    mixed: {
+      ...a.mixed,
+      means: a.mixed.means.map((m) => ({ ...m, recipe: Number(m.recipe) })),
+      contrasts: a.mixed.contrasts.map((c) => ({
+        ...c,
+        first: Number(c.first),
+        second: Number(c.second),
+      })),
+    },
   }
 }

@@ -1,6 +1,7 @@
 import type { FindingsTable } from '../../../shared/schemas/findings'
 import type { ExportTable } from './csv'
 import { interim, means, objective, omnibus, pairs } from './attributes'
+import { contrasts, mixed } from './mixedModel'
 import { preferences, scale } from './preferences'
 import { reliability, triangle } from './panel'
 import { aging } from './aging'
@@ -20,4 +21,6 @@ export const EXPORT_TABLES: Record<FindingsTable, ExportTable> = {
   objective,
   aging,
   interim,
+  mixed,
+  contrasts,
 }

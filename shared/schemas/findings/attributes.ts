@@ -69,6 +69,36 @@ export interface AttributeFindings {
   omnibus: OmnibusLine
   /** While the session runs: players still needed for the difference worth finding. */
   interim: InterimLook | null
+  /** rating ~ recipe + (1 | player) [+ (1 | player:recipe)], REML, Satterthwaite df. */
+  mixed: MixedModelFindings
+}
+
+export interface MixedModelFindings {
+  formula: string
+  n: number
+  players: number
+  variance: { player: number; playerRecipe: number | null; residual: number } | null
+  reml: number | null
+  test: { f: number; numDf: number; denDf: number; p: number } | null
+  means: {
+    recipe: number
+    estimate: number | null
+    se: number | null
+    df: number | null
+    ci: Interval | null
+  }[]
+  /** second − first; p Tukey-adjusted over the recipes' pairs. */
+  contrasts: {
+    first: number
+    second: number
+    estimate: number
+    se: number
+    df: number
+    t: number
+    p: number
+    pUnadjusted: number
+  }[]
+  reason: FindingsReason
 }
 
 /** The interim look at one attribute: a plan for more players, never advice to stop. */

@@ -52,6 +52,8 @@ export const FINDINGS_TABLES = [
   'objective',
   'aging',
   'interim',
+  'mixed',
+  'contrasts',
 ] as const
 export type FindingsTable = (typeof FINDINGS_TABLES)[number]
 
