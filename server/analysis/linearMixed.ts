@@ -171,11 +171,11 @@ export function mixedModel(
       })
     }
 
-  // The recipe F test as lmerTest's type III: rows β_j − β_1, Satterthwaite per eigenvector of
-  // L·V·Lᵀ, pooled into one denominator df.
-  const Ls = orthonormalRows(
-    Array.from({ length: k - 1 }, (_, r) => unit(r + 1).map((v, i) => v - unit(0)[i])),
-  )
+  // The recipe F test as lmerTest's type III. For one factor its contrasts are the rows of the
+  // Doolittle (LU) reduction of XᵀX in treatment coding, each scaled to a unit diagonal: they
+  // depend on how many ratings each recipe has, and with Satterthwaite's df per eigenvector of
+  // L·V·Lᵀ the basis matters, so it is the same basis.
+  const Ls = typeThreeContrasts(data.recipeCounts)
   const test = fTest(Ls, fit.beta, vcov, satterthwaite)
 
   // Too little data for the variance parameters' own spread (a flat or singular likelihood):
@@ -280,8 +280,11 @@ function cellData(
       for (let l = 0; l < size; l++) pattern.scatter[j * size + l] += means[j] * means[l]
     }
   }
+  const recipeCounts = new Array<number>(k).fill(0)
+  for (let p = 0; p < P; p++) for (let c = 0; c < k; c++) recipeCounts[c] += counts[p * k + c]
   return {
     k: column.size,
+    recipeCounts,
     patterns: [...patterns.values()],
     players: P,
     n,
@@ -436,17 +439,39 @@ function jacobiEigen(input: number[][]): { values: number[]; vectors: number[][]
   return { values: a.map((row, i) => row[i]), vectors: v }
 }
 
-/** Gram–Schmidt: an orthonormal basis of the rows' span, as R's qr.Q gives one. */
-function orthonormalRows(rows: number[][]): number[][] {
-  const out: number[][] = []
-  for (const row of rows) {
-    const v = [...row]
-    for (const q of out) {
-      const dot = q.reduce((s, x, i) => s + x * v[i], 0)
-      for (let i = 0; i < v.length; i++) v[i] -= dot * q[i]
+/**
+ * Type III contrasts of a one-way layout in cell-means coding, from the counts per recipe:
+ * Doolittle-reduce XᵀX of the treatment coding (intercept = first recipe, then one column per
+ * other recipe), scale each row to a unit diagonal, keep the recipe rows, and carry them from
+ * coefficients (μ₁, μⱼ − μ₁) to means.
+ */
+function typeThreeContrasts(counts: readonly number[]): number[][] {
+  const k = counts.length
+  const total = counts.reduce((a, b) => a + b, 0)
+  const xtx = Array.from({ length: k }, (_, i) =>
+    Array.from({ length: k }, (_, j) => {
+      if (i === 0 && j === 0) return total
+      if (i === 0) return counts[j]
+      if (j === 0) return counts[i]
+      return i === j ? counts[i] : 0
+    }),
+  )
+  // Gaussian elimination without pivoting: U of the LU decomposition.
+  const U = xtx.map((row) => [...row])
+  for (let c = 0; c < k; c++)
+    for (let r = c + 1; r < k; r++) {
+      const f = U[r][c] / U[c][c]
+      for (let j = c; j < k; j++) U[r][j] -= f * U[c][j]
     }
-    const norm = Math.sqrt(v.reduce((s, x) => s + x * x, 0))
-    out.push(v.map((x) => x / norm))
-  }
-  return out
+  const rows = U.slice(1).map((row, i) => row.map((v) => v / U[i + 1][i + 1]))
+  // Coefficient c₀ = μ₁, cⱼ = μⱼ − μ₁: a row l over coefficients is l₀μ₁ + Σ lⱼ(μⱼ − μ₁).
+  return rows.map((l) => {
+    const out = new Array<number>(k).fill(0)
+    out[0] = l[0]
+    for (let j = 1; j < k; j++) {
+      out[j] += l[j]
+      out[0] -= l[j]
+    }
+    return out
+  })
 }

@@ -19,6 +19,8 @@ export interface CellData {
    */
   patterns: CellPattern[]
   players: number
+  /** Ratings per recipe (column): the type III contrasts depend on them. */
+  recipeCounts: number[]
   /** Most ratings in any one cell. */
   maxCount: number
   /** Most cells any one player has. */
