@@ -54,6 +54,11 @@ export interface MixedModelResult {
   variance: { player: number; playerRecipe: number | null; residual: number } | null
   /** lme4's REML criterion. */
   reml: number | null
+  /**
+   * A variance component sits at 0 (lme4 calls the fit singular): the model then treats
+   * repeats as independent evidence, and its p-values deserve less trust than the paired table.
+   */
+  singular: boolean
   test: { f: number; numDf: number; denDf: number; p: number } | null
   means: MixedMean[]
   contrasts: MixedContrast[]
@@ -90,6 +95,7 @@ export function mixedModel(
     players: data.players,
     variance: null,
     reml: null,
+    singular: false,
     test: null,
     means: recipes.map((recipe) => ({ recipe, estimate: null, se: null, df: null, ci: null })),
     contrasts: [],
@@ -192,6 +198,7 @@ export function mixedModel(
     players: data.players,
     variance: { player: rhoU * s2, playerRecipe: data.repeated ? rhoV * s2 : null, residual: s2 },
     reml,
+    singular: rhoU < 1e-8 || (data.repeated && rhoV < 1e-8),
     test,
     means,
     contrasts,

@@ -20,6 +20,7 @@ export const mixed: ExportTable = {
     'var_player_recipe',
     'var_residual',
     'reml',
+    'singular',
     'reason',
   ],
   rows: (f, name) =>
@@ -41,6 +42,7 @@ export const mixed: ExportTable = {
         m.variance?.playerRecipe,
         m.variance?.residual,
         m.reml,
+        m.singular,
         m.reason,
       ]),
     ),

@@ -79,6 +79,8 @@ export interface MixedModelFindings {
   players: number
   variance: { player: number; playerRecipe: number | null; residual: number } | null
   reml: number | null
+  /** A variance component at 0: the model's p-values lean on repeats, trust them less. */
+  singular: boolean
   test: { f: number; numDf: number; denDf: number; p: number } | null
   means: {
     recipe: number

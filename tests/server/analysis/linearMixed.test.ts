@@ -131,3 +131,17 @@ describe('the mixed model on bad input', () => {
     expect(() => mixedModel([{ player: 'p', recipe: 'A', value: NaN }], ['A'])).toThrow(/finite/)
   })
 })
+
+describe('a singular fit', () => {
+  it('says so when a variance sits at 0, as lme4 warns', () => {
+    // Two players who agree exactly up to repeat noise: no spread between players to estimate.
+    const ratings = ['p1', 'p2'].flatMap((player) =>
+      ['A', 'B', 'C'].flatMap((recipe, j) =>
+        [0, 1].map((k) => ({ player, recipe, value: 40 + 10 * j + (k ? 1 : -1) })),
+      ),
+    )
+    const fit = mixedModel(ratings, ['A', 'B', 'C'])
+    expect(fit.singular).toBe(true)
+    expect(fit.variance?.player).toBeLessThan(1e-6)
+  })
+})
