@@ -4,7 +4,8 @@ import { compactLetters } from './compactLetters.ts'
 import { attributeHeadline } from './headline.ts'
 import { summarizeMean } from './describe.ts'
 import { interimLook, type InterimLook } from './interim.ts'
-import { mixedModel, type MixedModelRating, type MixedModelResult } from './linearMixed.ts'
+import { attributeMixedModel, type MixedModelSummary } from './mixedFindings.ts'
+import type { MixedModelRating } from './mixedModel.ts'
 import { omnibus, type OmnibusLine } from './omnibus.ts'
 import { recipePairs, type PairRow, type Wording } from './recipePairs.ts'
 import type { Id, Interval, Rating, Reason } from './types.ts'
@@ -68,7 +69,7 @@ export interface AttributeFindings {
   /** Players still needed for the difference worth finding; null unless asked for. */
   interim: InterimLook | null
   /** Every rating, players as a random effect: the analysis that keeps incomplete players. */
-  mixed: MixedModelResult
+  mixed: MixedModelSummary
 }
 
 export interface Findings {
@@ -109,7 +110,7 @@ export function computeFindings(input: FindingsInput): Findings {
   }
   const attributes = data.attributes.map((attribute, a) => {
     const info = attributeInfo.get(attribute)
-    const mixed = mixedModel(byAttribute.get(String(attribute)) ?? [], data.recipes)
+    const mixed = attributeMixedModel(byAttribute.get(String(attribute)) ?? [], data.recipes)
     return attributeFindings(attribute, data.dense[a], data.recipes, recipeName, mixed, {
       name: info?.name ?? String(attribute),
       higher: info?.higher,
@@ -139,7 +140,7 @@ function attributeFindings(
   dense: Float64Array,
   recipes: Id[],
   recipeName: (id: Id) => string,
-  mixed: MixedModelResult,
+  mixed: MixedModelSummary,
   wording: Wording,
 ): AttributeFindings {
   const k = recipes.length

@@ -104,11 +104,12 @@ export {
 export { formatInterval, formatNumber, formatP } from './format.ts'
 export {
   mixedModel,
-  type MixedContrast,
-  type MixedMean,
+  type MarginalMean,
   type MixedModelRating,
   type MixedModelResult,
-} from './linearMixed.ts'
+  type RecipeContrast,
+} from './mixedModel.ts'
+export { attributeMixedModel, type MixedModelSummary } from './mixedFindings.ts'
 export { interimLook, type InterimLook, type InterimOptions } from './interim.ts'
 export { omnibusSentence, pairSentence, type PairWording } from './sentences.ts'
 export {

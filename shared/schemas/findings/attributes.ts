@@ -93,14 +93,14 @@ export interface MixedModelFindings {
   contrasts: {
     first: number
     second: number
-    estimate: number
-    se: number
-    df: number
-    t: number
-    p: number
-    pUnadjusted: number
+    estimate: number | null
+    se: number | null
+    df: number | null
+    t: number | null
+    p: number | null
+    pUnadjusted: number | null
   }[]
-  reason: FindingsReason
+  reason: string | null
 }
 
 /** The interim look at one attribute: a plan for more players, never advice to stop. */
