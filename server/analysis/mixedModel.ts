@@ -18,7 +18,11 @@ const { jStat } = jstatPkg
  * player is the block, so its variance needs at least two players; and the Tukey p of a pair
  * needs at least 2 Satterthwaite df (the pair's other figures stand).
  */
-export type MixedModelReason = Reason | 'fewer than two players' | 'fewer than 2 degrees of freedom'
+export type MixedModelReason =
+  | Reason
+  | 'fewer than two players'
+  | 'fewer than 2 degrees of freedom'
+  | 'too few ratings for the model'
 
 export interface MixedModelRating {
   player: Id
@@ -118,7 +122,8 @@ export function mixedModel(
     return fail('no variance')
   }
   // lme4's rule: each random term needs fewer levels than ratings, and the residual needs df.
-  if (panel.players >= panel.n || panel.n - panel.k < 1) return fail('not enough data')
+  if (panel.players >= panel.n || panel.n - panel.k < 1)
+    return fail('too few ratings for the model')
   const optimum = fitReml(panel)
   if (optimum === null) return fail('no finite estimate')
   const s = satterthwaite(panel, optimum.phi, optimum.at)
@@ -327,7 +332,8 @@ function emptyResult(built: BuiltPanel, recipes: readonly Id[]): MixedModelResul
     se: null,
     df: null,
     ci: null,
-    reason: (listedN.get(recipe) as number) > 0 ? 'not enough data' : 'nobody rated it',
+    reason:
+      (listedN.get(recipe) as number) > 0 ? 'too few ratings for the model' : 'nobody rated it',
   }))
   const contrasts: RecipeContrast[] = []
   for (let a = 0; a < recipes.length; a++) {
@@ -343,7 +349,7 @@ function emptyResult(built: BuiltPanel, recipes: readonly Id[]): MixedModelResul
         t: null,
         p: null,
         pTukey: null,
-        reason: bothRated ? 'not enough data' : 'nobody rated it',
+        reason: bothRated ? 'too few ratings for the model' : 'nobody rated it',
       })
     }
   }
@@ -357,12 +363,12 @@ function emptyResult(built: BuiltPanel, recipes: readonly Id[]): MixedModelResul
       playerRecipe: null,
       residual: null,
       remlCriterion: null,
-      reason: 'not enough data',
+      reason: 'too few ratings for the model',
     },
-    recipeTest: emptyTest('not enough data'),
+    recipeTest: emptyTest('too few ratings for the model'),
     means,
     contrasts,
-    reason: 'not enough data',
+    reason: 'too few ratings for the model',
   }
 }
 

@@ -37,8 +37,8 @@ export type Reason =
   | 'too few hidden duplicates'
   // Correlations.
   | 'fewer than three pairs'
+  | 'no line-scale ratings from this player'
   // Anywhere.
-  | 'not enough data'
   | 'no variance'
   | 'no finite estimate'
   | null

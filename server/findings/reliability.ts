@@ -31,7 +31,7 @@ export function reliabilityFindings(
           excluded: p.exclusionReason !== null,
           exclusionReason: p.exclusionReason,
           headphoneFailed: p.headphoneFailed,
-          reason: r ? r.reason : 'not enough data',
+          reason: r ? r.reason : 'no line-scale ratings from this player',
         }
       }),
   }

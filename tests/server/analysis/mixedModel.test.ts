@@ -258,7 +258,7 @@ describe('panels the model cannot fit', () => {
 
   it('gives a reason when every player rated once', () => {
     const result = mixedModel([rating('p1', 'a', 40), rating('p2', 'b', 60)], ['a', 'b'])
-    expect(result.reason).toBe('not enough data')
+    expect(result.reason).toBe('too few ratings for the model')
     expectNoNonFinite(result)
   })
 
